@@ -1,0 +1,497 @@
+package dev.lawful.algebra;
+
+import java.util.ArrayList;
+import java.util.HashSet;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+
+/**
+ * Checks parsed declarations: every name known and declared before use, no duplicates, vector lengths that agree,
+ * indices in range, laws that mention an output, and units that agree in every sum and between the two sides of
+ * every law. All findings go to the {@link Diagnostics}; checking goes on after an error wherever the rest can
+ * still be judged (an erroneous sub-expression is skipped silently, so one mistake gives one message).
+ */
+final class Checker {
+
+    /** What a declared name stands for. */
+    record Symbol(Declaration declaration, int line, int shape, Dimension dimension, Unit unit, boolean output,
+                  boolean mentionsOutput, Double value) {
+    }
+
+    /**
+     * What the checker knows of an expression.
+     *
+     * @param shape          0 for a scalar, otherwise the vector length
+     * @param dimension      the dimension, or null for a literal zero, which fits any dimension
+     * @param unit           the declared unit the value is in, when it follows from one declaration, else null
+     * @param mentionsOutput whether an output takes part
+     * @param value          the value when it is a constant scalar, else null
+     */
+    record Info(int shape, Dimension dimension, Unit unit, boolean mentionsOutput, Double value) {
+    }
+
+    /** What a checked law is: its element count (0 for a scalar) and the unit its residual is reported in. */
+    record LawInfo(int shape, Unit unit) {
+    }
+
+    private final Diagnostics diagnostics;
+    private final Parser.Places places;
+    private final Map<String, Symbol> symbols = new LinkedHashMap<>();
+    private final Map<String, Integer> lawLines = new LinkedHashMap<>();
+    final Map<String, LawInfo> laws = new LinkedHashMap<>();
+    private int completionLine = -1;
+
+    Checker(Diagnostics diagnostics, Parser.Places places) {
+        this.diagnostics = diagnostics;
+        this.places = places;
+    }
+
+    void check(List<Declaration> declarations) {
+        for (Declaration d : declarations) {
+            if (diagnostics.full()) {
+                return;
+            }
+            int line = diagnostics.source().line(spanOf(d).offset());
+            if (d instanceof Declaration.Variable v) {
+                // a unit that did not parse is already reported: let it fit anything rather than cascade
+                Dimension dim = places.badUnits.contains(d) ? null : v.unit().dimension();
+                declare(d, v.name(), line, new Symbol(d, line, v.vector() ? v.size() : 0, dim, v.unit(),
+                        v.role() == Declaration.Role.OUTPUT, v.role() == Declaration.Role.OUTPUT, null));
+            } else if (d instanceof Declaration.Constant c) {
+                Double value = c.vector() ? null : c.values().get(0) * c.unit().factor();
+                declare(d, c.name(), line, new Symbol(d, line, c.vector() ? c.size() : 0,
+                        places.badUnits.contains(d) ? null : c.unit().dimension(),
+                        c.unit(), false, false, value));
+            } else if (d instanceof Declaration.Definition def) {
+                Info info = expr(def.expr());
+                if (info != null) {
+                    declare(d, def.name(), line, new Symbol(d, line, info.shape(),
+                            info.dimension() == null ? Dimension.NONE : info.dimension(), info.unit(), false,
+                            info.mentionsOutput(), info.value()));
+                } else {
+                    // keep the name known so later uses are not reported again as unknown
+                    declare(d, def.name(), line, new Symbol(d, line, -1, null, null, false, true, null));
+                }
+            } else if (d instanceof Declaration.Law law) {
+                law(law, line);
+            } else if (d instanceof Declaration.Completion c) {
+                completion(c, line);
+            }
+        }
+    }
+
+    private Span spanOf(Object node) {
+        Span s = places.of(node);
+        return s == null ? new Span(0, 0) : s;
+    }
+
+    private Span nameSpan(Declaration d) {
+        Span s = places.names.get(d);
+        return s == null ? spanOf(d) : s;
+    }
+
+    private void declare(Declaration d, String name, int line, Symbol symbol) {
+        if (Parser.KEYWORDS.contains(name)) {
+            diagnostics.error(nameSpan(d), "'" + name + "' is a keyword and cannot be declared");
+            return;
+        }
+        if (Function.named(name) != null || name.equals("sum") || name.equals("dot") || name.equals("pow")) {
+            diagnostics.error(nameSpan(d), "'" + name + "' is a function name and cannot be declared");
+            return;
+        }
+        Symbol previous = symbols.get(name);
+        if (previous != null) {
+            diagnostics.error(nameSpan(d), "'" + name + "' is already declared at line " + previous.line());
+            return;
+        }
+        if (lawLines.containsKey(name)) {
+            diagnostics.error(nameSpan(d), "'" + name + "' is already the name of the law at line "
+                    + lawLines.get(name));
+            return;
+        }
+        symbols.put(name, symbol);
+    }
+
+    private void law(Declaration.Law law, int line) {
+        Span at = nameSpan(law);
+        if (lawLines.containsKey(law.name())) {
+            diagnostics.error(at, "law '" + law.name() + "' is already declared at line " + lawLines.get(law.name()));
+        } else if (symbols.containsKey(law.name())) {
+            diagnostics.error(at, "law name '" + law.name() + "' is already declared at line "
+                    + symbols.get(law.name()).line());
+        } else {
+            lawLines.put(law.name(), line);
+        }
+        Info left = expr(law.lhs());
+        Info right = expr(law.rhs());
+        if (left == null || right == null) {
+            return;
+        }
+        String what = "between the sides of law '" + law.name() + "'";
+        int shape = broadcast(left, right, what, spanOf(law));
+        if (shape < 0) {
+            return;
+        }
+        Dimension dim = left.dimension() != null ? left.dimension() : right.dimension();
+        if (left.dimension() != null && right.dimension() != null && !left.dimension().equals(right.dimension())) {
+            diagnostics.error(spanOf(law.rhs()), "unit mismatch " + what + ": left is " + describe(left)
+                    + ", right is " + describe(right));
+            return;
+        }
+        if (!left.mentionsOutput() && !right.mentionsOutput()) {
+            diagnostics.error(at, "law '" + law.name() + "' mentions no output; a law must constrain at least one"
+                    + " output");
+            return;
+        }
+        if (dim == null) {
+            dim = Dimension.NONE;
+        }
+        Unit unit = left.unit() != null && left.unit().dimension().equals(dim) ? left.unit()
+                : right.unit() != null && right.unit().dimension().equals(dim) ? right.unit()
+                : Units.coherent(dim);
+        laws.put(law.name(), new LawInfo(shape, unit));
+    }
+
+    private void completion(Declaration.Completion c, int line) {
+        if (completionLine >= 0) {
+            diagnostics.error(spanOf(c), "only one 'complete' statement is allowed; the first is at line "
+                    + completionLine);
+            return;
+        }
+        completionLine = line;
+        Set<String> seen = new HashSet<>();
+        for (Expr t : c.targets()) {
+            String name = t instanceof Expr.Name n ? n.name() : t instanceof Expr.Index i ? i.name()
+                    : ((Expr.Slice) t).name();
+            Symbol s = lookup(name, spanOf(t));
+            if (s == null || s.shape() < 0) {
+                continue;
+            }
+            if (!(s.declaration() instanceof Declaration.Variable v) || v.role() != Declaration.Role.OUTPUT) {
+                diagnostics.error(spanOf(t), "'" + name + "' is " + kindOf(s) + "; only outputs can be completed");
+                continue;
+            }
+            if (elementRef(t, s) == null) {
+                continue;
+            }
+            int from = t instanceof Expr.Index i ? i.index() : t instanceof Expr.Slice sl ? sl.from() : 0;
+            int to = t instanceof Expr.Index i ? i.index() + 1 : t instanceof Expr.Slice sl ? sl.to() : Math.max(1, s.shape());
+            for (int k = from; k < to; k++) {
+                String element = s.shape() == 0 ? name : name + "[" + k + "]";
+                if (!seen.add(element)) {
+                    diagnostics.error(spanOf(t), element + " is completed twice");
+                    break;
+                }
+            }
+        }
+    }
+
+    private static String kindOf(Symbol s) {
+        Declaration d = s.declaration();
+        if (d instanceof Declaration.Variable v) {
+            return v.role() == Declaration.Role.INPUT ? "an input" : "an output";
+        }
+        if (d instanceof Declaration.Constant) {
+            return "a constant";
+        }
+        return "a definition";
+    }
+
+    private Symbol lookup(String name, Span at) {
+        Symbol s = symbols.get(name);
+        if (s == null) {
+            String near = Names.nearest(name, symbols.keySet());
+            diagnostics.error(at, "unknown name '" + name + "'" + (near == null ? "" : "; did you mean '" + near + "'?"));
+        }
+        return s;
+    }
+
+    /** Checks an index or slice against the symbol's length; null after reporting an error. */
+    private Info elementRef(Expr e, Symbol s) {
+        String name = e instanceof Expr.Index i ? i.name() : e instanceof Expr.Slice sl ? sl.name() : null;
+        if (name == null) {
+            return new Info(s.shape(), s.dimension(), s.unit(), s.mentionsOutput(), s.value());
+        }
+        if (s.shape() == 0) {
+            diagnostics.error(spanOf(e), "'" + name + "' is a scalar and cannot be indexed");
+            return null;
+        }
+        if (e instanceof Expr.Index i) {
+            if (i.index() >= s.shape()) {
+                diagnostics.error(spanOf(e), "index " + i.index() + " is out of range for '" + name + "' of length "
+                        + s.shape() + " (valid: 0 to " + (s.shape() - 1) + ")");
+                return null;
+            }
+            Double value = null;
+            if (s.declaration() instanceof Declaration.Constant c) {
+                value = c.values().get(i.index()) * c.unit().factor();
+            }
+            return new Info(0, s.dimension(), s.unit(), s.mentionsOutput(), value);
+        }
+        Expr.Slice sl = (Expr.Slice) e;
+        if (sl.to() > s.shape()) {
+            diagnostics.error(spanOf(e), "slice " + name + "[" + sl.from() + ":" + sl.to() + "] is out of range for '"
+                    + name + "' of length " + s.shape() + " (the end may be at most " + s.shape() + ")");
+            return null;
+        }
+        return new Info(sl.to() - sl.from(), s.dimension(), s.unit(), s.mentionsOutput(), null);
+    }
+
+    // ---- expressions -----------------------------------------------------------------------------------------
+
+    /** @return what the expression is, or null when it holds an error (already reported) */
+    private Info expr(Expr e) {
+        if (e instanceof Expr.Num n) {
+            return new Info(0, n.value() == 0 ? null : Dimension.NONE, null, false, n.value());
+        }
+        if (e instanceof Expr.Name || e instanceof Expr.Index || e instanceof Expr.Slice) {
+            String name = e instanceof Expr.Name n ? n.name() : e instanceof Expr.Index i ? i.name()
+                    : ((Expr.Slice) e).name();
+            Symbol s = lookup(name, spanOf(e));
+            if (s == null || s.shape() < 0) {
+                return null;
+            }
+            return elementRef(e, s);
+        }
+        if (e instanceof Expr.Neg n) {
+            Info a = expr(n.operand());
+            return a == null ? null : new Info(a.shape(), a.dimension(), a.unit(), a.mentionsOutput(),
+                    a.value() == null ? null : -a.value());
+        }
+        if (e instanceof Expr.Binary b) {
+            return binary(b);
+        }
+        if (e instanceof Expr.Call c) {
+            return call(c);
+        }
+        return vector((Expr.Vector) e);
+    }
+
+    private Info binary(Expr.Binary b) {
+        Info l = expr(b.left());
+        Info r = expr(b.right());
+        if (l == null || r == null) {
+            return null;
+        }
+        String what = "in '" + b.op().symbol() + "'";
+        int shape = broadcast(l, r, what, spanOf(b));
+        if (shape < 0) {
+            return null;
+        }
+        boolean mentions = l.mentionsOutput() || r.mentionsOutput();
+        Double lv = l.value();
+        Double rv = r.value();
+        switch (b.op()) {
+            case ADD:
+            case SUB: {
+                if (l.dimension() != null && r.dimension() != null && !l.dimension().equals(r.dimension())) {
+                    diagnostics.error(spanOf(b), "unit mismatch " + what + ": left is " + describe(l) + ", right is "
+                            + describe(r));
+                    return null;
+                }
+                Dimension d = l.dimension() != null ? l.dimension() : r.dimension();
+                Unit u = l.dimension() != null ? l.unit() : r.unit();
+                if (l.unit() != null && r.unit() != null && !l.unit().equals(r.unit())) {
+                    u = null;
+                }
+                Double v = lv != null && rv != null ? (b.op() == Expr.Op.ADD ? lv + rv : lv - rv) : null;
+                return new Info(shape, d, u, mentions, v);
+            }
+            case MUL:
+            case DIV: {
+                Dimension ld = l.dimension() == null ? Dimension.NONE : l.dimension();
+                Dimension rd = r.dimension() == null ? Dimension.NONE : r.dimension();
+                Dimension d = b.op() == Expr.Op.MUL ? ld.times(rd) : ld.over(rd);
+                if (d.maxAbsExponent() > Limits.MAX_UNIT_EXPONENT) {
+                    diagnostics.error(spanOf(b), "unit exponent beyond the limit of " + Limits.MAX_UNIT_EXPONENT);
+                    return null;
+                }
+                // a pure-number factor keeps the other side's unit (C * out stays in out's unit)
+                Unit u = rd.isNone() && (r.unit() == null || r.unit().isNone()) ? l.unit()
+                        : ld.isNone() && b.op() == Expr.Op.MUL && (l.unit() == null || l.unit().isNone()) ? r.unit()
+                        : null;
+                Double v = lv != null && rv != null ? (b.op() == Expr.Op.MUL ? lv * rv : lv / rv) : null;
+                if (l.dimension() == null || (r.dimension() == null && b.op() == Expr.Op.MUL)) {
+                    // zero times anything is zero, which fits any unit
+                    return new Info(shape, null, null, mentions, v);
+                }
+                return new Info(shape, d, u, mentions, v);
+            }
+            default:
+                return power(b, l, r, shape, mentions);
+        }
+    }
+
+    private Info power(Expr b, Info base, Info exponent, int shape, boolean mentions) {
+        Dimension ed = exponent.dimension() == null ? Dimension.NONE : exponent.dimension();
+        if (!ed.isNone()) {
+            diagnostics.error(spanOf(b), "the exponent must be dimensionless, found " + describe(exponent));
+            return null;
+        }
+        Double v = base.value() != null && exponent.value() != null ? Math.pow(base.value(), exponent.value()) : null;
+        Dimension bd = base.dimension() == null ? Dimension.NONE : base.dimension();
+        if (bd.isNone()) {
+            return new Info(shape, Dimension.NONE, null, mentions, v);
+        }
+        if (exponent.value() == null || exponent.shape() != 0) {
+            diagnostics.error(spanOf(b), "a quantity in " + describe(base)
+                    + " can only be raised to a constant scalar exponent");
+            return null;
+        }
+        double k = exponent.value();
+        int[] e = new int[7];
+        for (int i = 0; i < 7; i++) {
+            double x = bd.exponent(i) * k;
+            if (Math.abs(x - Math.rint(x)) > 1e-9 || Math.abs(x) > Limits.MAX_UNIT_EXPONENT) {
+                diagnostics.error(spanOf(b), "exponent " + ExprPrinter.number(k) + " does not give whole unit powers"
+                        + " of " + describe(base) + (Math.abs(x) > Limits.MAX_UNIT_EXPONENT ? " within the limit of "
+                        + Limits.MAX_UNIT_EXPONENT : ""));
+                return null;
+            }
+            e[i] = (int) Math.rint(x);
+        }
+        return new Info(shape, Dimension.of(e), null, mentions, v);
+    }
+
+    private Info call(Expr.Call c) {
+        String name = c.function();
+        Span at = spanOf(c);
+        List<Info> args = new ArrayList<>();
+        boolean bad = false;
+        for (Expr a : c.args()) {
+            Info i = expr(a);
+            bad |= i == null;
+            args.add(i);
+        }
+        Function f = Function.named(name);
+        int arity = f != null ? 1 : name.equals("sum") ? 1 : name.equals("dot") || name.equals("pow") ? 2 : -1;
+        if (arity < 0) {
+            Symbol s = symbols.get(name);
+            if (s != null) {
+                diagnostics.error(at, "'" + name + "' is " + kindOf(s) + ", not a function; write " + name
+                        + "[i] for an element");
+            } else {
+                List<String> all = new ArrayList<>(List.of("sum", "dot", "pow"));
+                for (Function fn : Function.values()) {
+                    all.add(fn.spelling());
+                }
+                String near = Names.nearest(name, all);
+                diagnostics.error(at, "unknown function '" + name + "'" + (near == null ? "" : "; did you mean '" + near
+                        + "'?"));
+            }
+            return null;
+        }
+        if (args.size() != arity) {
+            diagnostics.error(at, "'" + name + "' takes " + arity + " argument" + (arity == 1 ? "" : "s") + ", found "
+                    + args.size());
+            return null;
+        }
+        if (bad) {
+            return null;
+        }
+        Info a = args.get(0);
+        if (name.equals("sum")) {
+            return new Info(0, a.dimension(), a.unit(), a.mentionsOutput(), a.shape() == 0 ? a.value() : null);
+        }
+        if (name.equals("pow")) {
+            int shape = broadcast(a, args.get(1), "in 'pow'", at);
+            return shape < 0 ? null : power(c, a, args.get(1), shape, a.mentionsOutput() || args.get(1).mentionsOutput());
+        }
+        if (name.equals("dot")) {
+            Info b = args.get(1);
+            if (a.shape() == 0 || b.shape() == 0 || a.shape() != b.shape()) {
+                diagnostics.error(at, "'dot' needs two vectors of the same length, found " + shapeText(a.shape())
+                        + " and " + shapeText(b.shape()));
+                return null;
+            }
+            Dimension ad = a.dimension() == null ? Dimension.NONE : a.dimension();
+            Dimension bd = b.dimension() == null ? Dimension.NONE : b.dimension();
+            Unit u = bd.isNone() ? a.unit() : ad.isNone() ? b.unit() : null;
+            return new Info(0, ad.times(bd), u, a.mentionsOutput() || b.mentionsOutput(), null);
+        }
+        Dimension d = a.dimension() == null ? Dimension.NONE : a.dimension();
+        Double v = a.value() == null ? null : f.apply(a.value());
+        switch (f.kind()) {
+            case DIMENSIONLESS:
+                if (!d.isNone()) {
+                    diagnostics.error(at, "the argument of '" + name + "' must be dimensionless, found " + describe(a));
+                    return null;
+                }
+                return new Info(a.shape(), Dimension.NONE, null, a.mentionsOutput(), v);
+            case ROOT:
+                if (!d.hasSquareRoot()) {
+                    diagnostics.error(at, "the argument of '" + name + "' is in " + describe(a)
+                            + ", which has no square root in whole unit powers");
+                    return null;
+                }
+                return new Info(a.shape(), d.root2(), null, a.mentionsOutput(), v);
+            case SAME:
+                return new Info(a.shape(), a.dimension(), a.unit(), a.mentionsOutput(), v);
+            default:
+                return new Info(a.shape(), Dimension.NONE, null, a.mentionsOutput(), v);
+        }
+    }
+
+    private Info vector(Expr.Vector v) {
+        Dimension d = null;
+        Unit u = null;
+        boolean mentions = false;
+        for (Expr e : v.elements()) {
+            Info i = expr(e);
+            if (i == null) {
+                return null;
+            }
+            if (i.shape() != 0) {
+                diagnostics.error(spanOf(e), "the elements of a vector literal must be scalars, found "
+                        + shapeText(i.shape()));
+                return null;
+            }
+            if (i.dimension() != null) {
+                if (d != null && !d.equals(i.dimension())) {
+                    diagnostics.error(spanOf(e), "unit mismatch in a vector literal: earlier elements are in "
+                            + d + ", this one is in " + describe(i));
+                    return null;
+                }
+                if (d == null) {
+                    u = i.unit();
+                } else if (u != null && !u.equals(i.unit())) {
+                    u = null;
+                }
+                d = i.dimension();
+            }
+            mentions |= i.mentionsOutput();
+        }
+        return new Info(v.elements().size(), d, u, mentions, null);
+    }
+
+    /** @return the shape of an element-wise combination, or -1 after reporting a mismatch */
+    private int broadcast(Info l, Info r, String what, Span at) {
+        if (l.shape() == 0) {
+            return r.shape();
+        }
+        if (r.shape() == 0 || r.shape() == l.shape()) {
+            return l.shape();
+        }
+        diagnostics.error(at, "vector length mismatch " + what + ": left is " + shapeText(l.shape()) + ", right is "
+                + shapeText(r.shape()));
+        return -1;
+    }
+
+    static String shapeText(int shape) {
+        return shape == 0 ? "a scalar" : "a vector of length " + shape;
+    }
+
+    private static String describe(Info i) {
+        Dimension d = i.dimension() == null ? Dimension.NONE : i.dimension();
+        if (d.isNone()) {
+            return "dimensionless";
+        }
+        String si = Units.coherent(d).display();
+        if (i.unit() != null && !i.unit().text().isEmpty() && !i.unit().text().equals(si)) {
+            return i.unit().text() + " (" + si + ")";
+        }
+        return si;
+    }
+}

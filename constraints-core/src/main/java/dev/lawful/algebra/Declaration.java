@@ -1,0 +1,146 @@
+package dev.lawful.algebra;
+
+import java.util.List;
+import java.util.Objects;
+import java.util.stream.Collectors;
+
+/**
+ * One statement of a law set. Each prints as one line of law text that parses back to an equal declaration.
+ */
+public sealed interface Declaration {
+
+    /** @return the declaration as one line of law text */
+    String text();
+
+    /** Whether a variable is given to the layer (input) or produced by it (output). */
+    enum Role {
+        INPUT("input"), OUTPUT("output");
+
+        private final String keyword;
+
+        Role(String keyword) {
+            this.keyword = keyword;
+        }
+
+        /** @return the keyword that declares it */
+        public String keyword() {
+            return keyword;
+        }
+    }
+
+    /**
+     * An input or output: a scalar, or a vector of {@code size} elements.
+     *
+     * @param role   input or output
+     * @param name   its name
+     * @param vector whether it was declared with a length ({@code x[1]} is a vector of one element)
+     * @param size   number of elements (1 for a scalar)
+     * @param unit   unit of every element
+     */
+    record Variable(Role role, String name, boolean vector, int size, Unit unit) implements Declaration {
+        public Variable {
+            Objects.requireNonNull(role, "role");
+            Objects.requireNonNull(name, "name");
+            Objects.requireNonNull(unit, "unit");
+        }
+
+        @Override
+        public String text() {
+            return role.keyword() + " " + name + (vector ? "[" + size + "]" : "") + unitSuffix(unit);
+        }
+    }
+
+    /**
+     * A named constant: a scalar or a vector of finite numbers, in {@code unit}.
+     *
+     * @param name   its name
+     * @param vector whether it was written as a vector literal
+     * @param values the numbers as written (in {@code unit}, not yet converted to SI)
+     * @param unit   the unit of every element
+     */
+    record Constant(String name, boolean vector, List<Double> values, Unit unit) implements Declaration {
+        public Constant {
+            Objects.requireNonNull(name, "name");
+            Objects.requireNonNull(unit, "unit");
+            values = List.copyOf(values);
+        }
+
+        /** @return number of elements (1 for a scalar) */
+        public int size() {
+            return values.size();
+        }
+
+        @Override
+        public String text() {
+            String v = vector
+                    ? values.stream().map(ExprPrinter::number).collect(Collectors.joining(", ", "[", "]"))
+                    : ExprPrinter.number(values.get(0));
+            return "const " + name + " = " + v + unitSuffix(unit);
+        }
+    }
+
+    /**
+     * A named intermediate expression; its unit and shape follow from the expression.
+     *
+     * @param name its name
+     * @param expr its value
+     */
+    record Definition(String name, Expr expr) implements Declaration {
+        public Definition {
+            Objects.requireNonNull(name, "name");
+            Objects.requireNonNull(expr, "expr");
+        }
+
+        @Override
+        public String text() {
+            return "let " + name + " = " + ExprPrinter.print(expr);
+        }
+    }
+
+    /**
+     * A named law {@code lhs = rhs}; a vector law stands for one law per element, named {@code name[i]}.
+     *
+     * @param name its name
+     * @param lhs  left-hand side
+     * @param rhs  right-hand side
+     */
+    record Law(String name, Expr lhs, Expr rhs) implements Declaration {
+        public Law {
+            Objects.requireNonNull(name, "name");
+            Objects.requireNonNull(lhs, "lhs");
+            Objects.requireNonNull(rhs, "rhs");
+        }
+
+        @Override
+        public String text() {
+            return "law " + name + ": " + ExprPrinter.print(lhs) + " = " + ExprPrinter.print(rhs);
+        }
+    }
+
+    /**
+     * Which outputs the layer computes from the laws (the others are predicted by the network).
+     *
+     * @param targets output references: a whole output ({@link Expr.Name}), one element ({@link Expr.Index}) or a
+     *                slice ({@link Expr.Slice})
+     */
+    record Completion(List<Expr> targets) implements Declaration {
+        public Completion {
+            targets = List.copyOf(targets);
+            for (Expr t : targets) {
+                if (!(t instanceof Expr.Name || t instanceof Expr.Index || t instanceof Expr.Slice)) {
+                    throw new IllegalArgumentException("a completed output is a name, an element or a slice, found "
+                            + ExprPrinter.print(t));
+                }
+            }
+        }
+
+        @Override
+        public String text() {
+            return "complete " + targets.stream().map(ExprPrinter::print).collect(Collectors.joining(", "));
+        }
+    }
+
+    private static String unitSuffix(Unit unit) {
+        return unit.text().isEmpty() ? "" : " " + unit.text();
+    }
+}

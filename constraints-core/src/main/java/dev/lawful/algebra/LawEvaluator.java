@@ -1,0 +1,610 @@
+package dev.lawful.algebra;
+
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.TreeMap;
+
+/**
+ * The laws and their Jacobians compiled into straight-line register code that runs over a batch: each instruction
+ * processes a block of {@value #BLOCK} samples in one loop, so nothing walks an expression tree per sample and the
+ * per-instruction dispatch is shared by the block. Common sub-expressions are computed once (the terms are
+ * hash-consed) and registers are reused once a value is dead.
+ *
+ * <p>Batches are flat row-major arrays: sample {@code s} has inputs {@code x[s*inputWidth ..]} and outputs
+ * {@code y[s*outputWidth ..]}, in the declared units. Residuals are in coherent SI units of each law's dimension.
+ * The Jacobian of law {@code i} holds only the structurally nonzero entries listed by
+ * {@link #outputColumns(int)} and {@link #inputColumns(int)}, law after law: per sample {@link #outputNonzeros()}
+ * entries for dC/dy and {@link #inputNonzeros()} for dC/dx, each in SI units of the law per declared unit of the
+ * variable.
+ *
+ * <p>Immutable and safe to share between threads; each thread passes its own {@link Workspace} (or lets a call
+ * allocate one).
+ */
+public final class LawEvaluator {
+    /** Samples processed per instruction. */
+    public static final int BLOCK = 64;
+
+    private static final int CONST = 0;
+    private static final int IN = 1;
+    private static final int OUT = 2;
+    private static final int SUM = 3;
+    private static final int NEG = 4;
+    private static final int MUL = 5;
+    private static final int DIV = 6;
+    private static final int POW = 7;
+    private static final int SQUARE = 8;
+    private static final int FN = 9;
+    private static final int STORE = 10;
+    private static final int MAXABS = 11;
+
+    private static final int TO_RESIDUAL = 0;
+    private static final int TO_SCALE = 1;
+    private static final int TO_JY = 2;
+    private static final int TO_JX = 3;
+
+    private static final Function[] FUNCTIONS = Function.values();
+
+    private final int inputWidth;
+    private final int outputWidth;
+    private final int laws;
+    private final String[] lawNames;
+    private final int[] outStart;
+    private final int[] outColumns;
+    private final int[] inStart;
+    private final int[] inColumns;
+    private final Program residualProgram;
+    private final Program fullProgram;
+
+    /** Work arrays for one thread. Reuse one per thread to evaluate without allocating. */
+    public static final class Workspace {
+        private final double[] registers;
+
+        private Workspace(int registers) {
+            this.registers = new double[registers * BLOCK];
+        }
+    }
+
+    private record Program(int[] code, double[] constants, int registers) {
+    }
+
+    private record Root(Term term, int target, int index, List<Term> scaleTerms) {
+    }
+
+    /**
+     * Compiles residuals, natural scales and Jacobian entries of every law.
+     *
+     * @param expanded the scalar laws
+     * @throws LawException when the derivatives grow beyond {@link Limits#MAX_SCALAR_NODES}
+     */
+    public static LawEvaluator compile(ExpandedLaws expanded) {
+        return new LawEvaluator(expanded);
+    }
+
+    private LawEvaluator(ExpandedLaws e) {
+        this.inputWidth = e.inputWidth();
+        this.outputWidth = e.outputWidth();
+        this.laws = e.size();
+        this.lawNames = new String[laws];
+        this.outStart = new int[laws + 1];
+        this.inStart = new int[laws + 1];
+        List<Root> residualRoots = new ArrayList<>();
+        List<Root> jacobianRoots = new ArrayList<>();
+        List<Integer> outCols = new ArrayList<>();
+        List<Integer> inCols = new ArrayList<>();
+        try {
+            for (int i = 0; i < laws; i++) {
+                lawNames[i] = e.name(i);
+                Term r = e.residual(i);
+                residualRoots.add(new Root(r, TO_RESIDUAL, i, null));
+                residualRoots.add(new Root(r, TO_SCALE, i, e.terms(i)));
+                Map<Integer, Term> g = new TreeMap<>(e.gradient(i));
+                // keep every structural entry, even one whose derivative is identically zero, so the pattern
+                // matches the sparsity reported by ExpandedLaws
+                for (int v : e.outputs(i)) {
+                    outCols.add(v);
+                    jacobianRoots.add(new Root(g.getOrDefault(inputWidth + v, e.pool().constant(0)), TO_JY,
+                            outCols.size() - 1, null));
+                }
+                for (int v : e.inputs(i)) {
+                    inCols.add(v);
+                    jacobianRoots.add(new Root(g.getOrDefault(v, e.pool().constant(0)), TO_JX, inCols.size() - 1, null));
+                }
+                outStart[i + 1] = outCols.size();
+                inStart[i + 1] = inCols.size();
+            }
+        } catch (TermPool.TooLarge tooLarge) {
+            Diagnostics d = new Diagnostics(new SourceText("<derivatives>", ""));
+            d.error(new Span(0, 0), "the derivatives of the law set need more than " + Limits.MAX_SCALAR_NODES
+                    + " scalar expression nodes; split the law set or use fewer vector elements");
+            throw new LawException(d.all(), 0);
+        }
+        this.outColumns = outCols.stream().mapToInt(Integer::intValue).toArray();
+        this.inColumns = inCols.stream().mapToInt(Integer::intValue).toArray();
+        this.residualProgram = assemble(residualRoots, e.pool());
+        List<Root> all = new ArrayList<>(residualRoots);
+        all.addAll(jacobianRoots);
+        this.fullProgram = assemble(all, e.pool());
+    }
+
+    // ---- assembly --------------------------------------------------------------------------------------------
+
+    private Program assemble(List<Root> roots, TermPool pool) {
+        synchronized (pool) {
+            return assembleLocked(roots, pool);
+        }
+    }
+
+    private Program assembleLocked(List<Root> roots, TermPool pool) {
+        // every node any root needs, in id order (children first)
+        java.util.TreeSet<Integer> ids = new java.util.TreeSet<>();
+        Map<Integer, Term> byId = new HashMap<>();
+        Map<Integer, List<Root>> rootsAt = new HashMap<>();
+        for (Root r : roots) {
+            for (Term t : pool.reachable(r.term())) {
+                if (ids.add(t.id)) {
+                    byId.put(t.id, t);
+                }
+            }
+            int at = r.term().id;
+            if (r.scaleTerms() != null) {
+                for (Term t : r.scaleTerms()) {
+                    at = Math.max(at, t.id);
+                }
+            }
+            rootsAt.computeIfAbsent(at, k -> new ArrayList<>()).add(r);
+        }
+        // instructions as (op, defined node, used nodes, aux...) before register allocation
+        List<int[]> instrs = new ArrayList<>();
+        List<int[]> uses = new ArrayList<>();
+        List<Integer> defines = new ArrayList<>();
+        List<Double> constants = new ArrayList<>();
+        for (int id : ids) {
+            Term t = byId.get(id);
+            int[] args = new int[t.args.length];
+            for (int k = 0; k < args.length; k++) {
+                args[k] = t.args[k].id;
+            }
+            int[] aux;
+            switch (t.kind) {
+                case CONST:
+                    constants.add(t.value);
+                    aux = new int[] {CONST, constants.size() - 1};
+                    break;
+                case VAR:
+                    aux = t.variable < inputWidth ? new int[] {IN, t.variable} : new int[] {OUT, t.variable - inputWidth};
+                    break;
+                case SUM:
+                    aux = new int[] {SUM};
+                    break;
+                case NEG:
+                    aux = new int[] {NEG};
+                    break;
+                case MUL:
+                    aux = new int[] {MUL};
+                    break;
+                case DIV:
+                    aux = new int[] {DIV};
+                    break;
+                case POW:
+                    if (t.args[1].isConstant(2)) {
+                        aux = new int[] {SQUARE};
+                        args = new int[] {args[0]};
+                    } else {
+                        aux = new int[] {POW};
+                    }
+                    break;
+                case FN:
+                    aux = new int[] {FN, t.function.ordinal()};
+                    break;
+                default:
+                    throw new AssertionError(t.kind);
+            }
+            instrs.add(aux);
+            uses.add(args);
+            defines.add(id);
+            for (Root r : rootsAt.getOrDefault(id, List.of())) {
+                if (r.target() == TO_SCALE) {
+                    int[] scaleArgs = r.scaleTerms().stream().mapToInt(x -> x.id).toArray();
+                    instrs.add(new int[] {MAXABS, r.index()});
+                    uses.add(scaleArgs);
+                } else {
+                    instrs.add(new int[] {STORE, r.target(), r.index()});
+                    uses.add(new int[] {r.term().id});
+                }
+                defines.add(-1);
+            }
+        }
+        // last use of every node, then linear-scan register allocation
+        Map<Integer, Integer> lastUse = new HashMap<>();
+        for (int k = 0; k < instrs.size(); k++) {
+            for (int a : uses.get(k)) {
+                lastUse.put(a, k);
+            }
+        }
+        Map<Integer, Integer> register = new HashMap<>();
+        int[] free = new int[16];
+        int freeCount = 0;
+        int registers = 0;
+        int[] code = new int[64];
+        int length = 0;
+        for (int k = 0; k < instrs.size(); k++) {
+            int[] aux = instrs.get(k);
+            int[] args = uses.get(k);
+            int[] regs = new int[args.length];
+            for (int a = 0; a < args.length; a++) {
+                regs[a] = register.get(args[a]);
+            }
+            for (int a = 0; a < args.length; a++) {
+                if (lastUse.get(args[a]) == k && register.containsKey(args[a])) {
+                    if (freeCount == free.length) {
+                        free = Arrays.copyOf(free, freeCount * 2);
+                    }
+                    free[freeCount++] = register.remove(args[a]);
+                }
+            }
+            int dst = -1;
+            int node = defines.get(k);
+            if (node >= 0) {
+                dst = freeCount > 0 ? free[--freeCount] : registers++;
+                register.put(node, dst);
+                if (!lastUse.containsKey(node)) {
+                    throw new AssertionError("node " + node + " is computed but never used");
+                }
+            }
+            int[] words = encode(aux, dst, regs);
+            if (length + words.length > code.length) {
+                code = Arrays.copyOf(code, Math.max(code.length * 2, length + words.length));
+            }
+            System.arraycopy(words, 0, code, length, words.length);
+            length += words.length;
+        }
+        double[] c = new double[constants.size()];
+        for (int i = 0; i < c.length; i++) {
+            c[i] = constants.get(i);
+        }
+        return new Program(Arrays.copyOf(code, length), c, Math.max(registers, 1));
+    }
+
+    private static int[] encode(int[] aux, int dst, int[] regs) {
+        switch (aux[0]) {
+            case CONST:
+            case IN:
+            case OUT:
+                return new int[] {aux[0], dst, aux[1]};
+            case SUM: {
+                int[] w = new int[3 + regs.length];
+                w[0] = SUM;
+                w[1] = dst;
+                w[2] = regs.length;
+                System.arraycopy(regs, 0, w, 3, regs.length);
+                return w;
+            }
+            case NEG:
+            case SQUARE:
+                return new int[] {aux[0], dst, regs[0]};
+            case MUL:
+            case DIV:
+            case POW:
+                return new int[] {aux[0], dst, regs[0], regs[1]};
+            case FN:
+                return new int[] {FN, dst, aux[1], regs[0]};
+            case STORE:
+                return new int[] {STORE, aux[1], aux[2], regs[0]};
+            case MAXABS: {
+                int[] w = new int[3 + regs.length];
+                w[0] = MAXABS;
+                w[1] = aux[1];
+                w[2] = regs.length;
+                System.arraycopy(regs, 0, w, 3, regs.length);
+                return w;
+            }
+            default:
+                throw new AssertionError(aux[0]);
+        }
+    }
+
+    // ---- shape -----------------------------------------------------------------------------------------------
+
+    /** @return input elements per sample */
+    public int inputWidth() {
+        return inputWidth;
+    }
+
+    /** @return output elements per sample */
+    public int outputWidth() {
+        return outputWidth;
+    }
+
+    /** @return scalar laws per sample */
+    public int lawCount() {
+        return laws;
+    }
+
+    /** @return the name of scalar law {@code i} */
+    public String lawName(int i) {
+        return lawNames[i];
+    }
+
+    /** @return structurally nonzero dC/dy entries per sample */
+    public int outputNonzeros() {
+        return outColumns.length;
+    }
+
+    /** @return structurally nonzero dC/dx entries per sample */
+    public int inputNonzeros() {
+        return inColumns.length;
+    }
+
+    /** @return the output element index of each dC/dy entry of law {@code i}, in storage order */
+    public int[] outputColumns(int i) {
+        return Arrays.copyOfRange(outColumns, outStart[i], outStart[i + 1]);
+    }
+
+    /** @return the position of law {@code i}'s first dC/dy entry within a sample's entries */
+    public int outputOffset(int i) {
+        return outStart[i];
+    }
+
+    /** @return the input element index of each dC/dx entry of law {@code i}, in storage order */
+    public int[] inputColumns(int i) {
+        return Arrays.copyOfRange(inColumns, inStart[i], inStart[i + 1]);
+    }
+
+    /** @return the position of law {@code i}'s first dC/dx entry within a sample's entries */
+    public int inputOffset(int i) {
+        return inStart[i];
+    }
+
+    /** @return a workspace large enough for every method of this evaluator */
+    public Workspace newWorkspace() {
+        return new Workspace(Math.max(residualProgram.registers(), fullProgram.registers()));
+    }
+
+    // ---- evaluation ------------------------------------------------------------------------------------------
+
+    /**
+     * Computes each law's residual C = lhs - rhs and its natural scale (the largest magnitude among the addends of
+     * the residual's flat sum) for every sample. Allocates nothing when given a workspace.
+     *
+     * @param x         inputs, {@code batch * inputWidth} values (may be null when {@code inputWidth} is 0)
+     * @param y         outputs, {@code batch * outputWidth} values
+     * @param batch     number of samples
+     * @param residuals output buffer of {@code batch * lawCount} values, or null
+     * @param scales    output buffer of {@code batch * lawCount} values, or null
+     * @param workspace this thread's work arrays, from {@link #newWorkspace()}
+     * @throws IllegalArgumentException when an array is shorter than the batch needs
+     */
+    public void residuals(double[] x, double[] y, int batch, double[] residuals, double[] scales, Workspace workspace) {
+        check(x, y, batch, residuals, scales, null, null);
+        run(residualProgram, x, y, batch, residuals, scales, null, null, workspace);
+    }
+
+    /** Like {@link #residuals(double[], double[], int, double[], double[], Workspace)}, allocating a workspace. */
+    public void residuals(double[] x, double[] y, int batch, double[] residuals, double[] scales) {
+        residuals(x, y, batch, residuals, scales, newWorkspace());
+    }
+
+    /**
+     * Computes residuals, scales and the structurally nonzero Jacobian entries dC/dy and dC/dx of every sample.
+     * Every output buffer is optional (null skips it). Allocates nothing when given a workspace.
+     *
+     * @param jacobianY output buffer of {@code batch * outputNonzeros()} values, or null
+     * @param jacobianX output buffer of {@code batch * inputNonzeros()} values, or null
+     * @throws IllegalArgumentException when an array is shorter than the batch needs
+     */
+    public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales, double[] jacobianY,
+                         double[] jacobianX, Workspace workspace) {
+        check(x, y, batch, residuals, scales, jacobianY, jacobianX);
+        Program p = jacobianY == null && jacobianX == null ? residualProgram : fullProgram;
+        run(p, x, y, batch, residuals, scales, jacobianY, jacobianX, workspace);
+    }
+
+    /** Like {@link #evaluate(double[], double[], int, double[], double[], double[], double[], Workspace)}. */
+    public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales, double[] jacobianY,
+                         double[] jacobianX) {
+        evaluate(x, y, batch, residuals, scales, jacobianY, jacobianX, newWorkspace());
+    }
+
+    private void check(double[] x, double[] y, int batch, double[] residuals, double[] scales, double[] jy,
+                       double[] jx) {
+        if (batch < 0) {
+            throw new IllegalArgumentException("batch must be >= 0, found " + batch);
+        }
+        need("x (inputs)", x, (long) batch * inputWidth);
+        need("y (outputs)", y, (long) batch * outputWidth);
+        if (residuals != null) {
+            need("residuals", residuals, (long) batch * laws);
+        }
+        if (scales != null) {
+            need("scales", scales, (long) batch * laws);
+        }
+        if (jy != null) {
+            need("jacobianY", jy, (long) batch * outColumns.length);
+        }
+        if (jx != null) {
+            need("jacobianX", jx, (long) batch * inColumns.length);
+        }
+    }
+
+    private static void need(String what, double[] a, long n) {
+        if (n > 0 && (a == null || a.length < n)) {
+            throw new IllegalArgumentException(what + " must hold at least " + n + " values for this batch, found "
+                    + (a == null ? "null" : a.length));
+        }
+    }
+
+    private void run(Program p, double[] x, double[] y, int batch, double[] res, double[] scale, double[] jy,
+                     double[] jx, Workspace ws) {
+        if (ws.registers.length < p.registers() * BLOCK) {
+            throw new IllegalArgumentException("workspace belongs to another evaluator; use this evaluator's "
+                    + "newWorkspace()");
+        }
+        for (int s0 = 0; s0 < batch; s0 += BLOCK) {
+            block(p, x, y, s0, Math.min(BLOCK, batch - s0), res, scale, jy, jx, ws.registers);
+        }
+    }
+
+    private void block(Program p, double[] x, double[] y, int s0, int m, double[] res, double[] scale, double[] jy,
+                       double[] jx, double[] r) {
+        final int[] code = p.code();
+        final double[] constants = p.constants();
+        final int nIn = inputWidth;
+        final int nOut = outputWidth;
+        int pc = 0;
+        while (pc < code.length) {
+            int op = code[pc];
+            switch (op) {
+                case CONST: {
+                    int d = code[pc + 1] * BLOCK;
+                    Arrays.fill(r, d, d + m, constants[code[pc + 2]]);
+                    pc += 3;
+                    break;
+                }
+                case IN: {
+                    int d = code[pc + 1] * BLOCK;
+                    int k = code[pc + 2] + s0 * nIn;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = x[k + j * nIn];
+                    }
+                    pc += 3;
+                    break;
+                }
+                case OUT: {
+                    int d = code[pc + 1] * BLOCK;
+                    int k = code[pc + 2] + s0 * nOut;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = y[k + j * nOut];
+                    }
+                    pc += 3;
+                    break;
+                }
+                case SUM: {
+                    int d = code[pc + 1] * BLOCK;
+                    int n = code[pc + 2];
+                    for (int j = 0; j < m; j++) {
+                        double s = 0;
+                        double c = 0;
+                        for (int a = 0; a < n; a++) {
+                            double v = r[code[pc + 3 + a] * BLOCK + j];
+                            double t = s + v;
+                            if (Math.abs(s) >= Math.abs(v)) {
+                                c += (s - t) + v;
+                            } else {
+                                c += (v - t) + s;
+                            }
+                            s = t;
+                        }
+                        r[d + j] = s + c;
+                    }
+                    pc += 3 + n;
+                    break;
+                }
+                case NEG: {
+                    int d = code[pc + 1] * BLOCK;
+                    int a = code[pc + 2] * BLOCK;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = -r[a + j];
+                    }
+                    pc += 3;
+                    break;
+                }
+                case SQUARE: {
+                    int d = code[pc + 1] * BLOCK;
+                    int a = code[pc + 2] * BLOCK;
+                    for (int j = 0; j < m; j++) {
+                        double v = r[a + j];
+                        r[d + j] = v * v;
+                    }
+                    pc += 3;
+                    break;
+                }
+                case MUL: {
+                    int d = code[pc + 1] * BLOCK;
+                    int a = code[pc + 2] * BLOCK;
+                    int b = code[pc + 3] * BLOCK;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = r[a + j] * r[b + j];
+                    }
+                    pc += 4;
+                    break;
+                }
+                case DIV: {
+                    int d = code[pc + 1] * BLOCK;
+                    int a = code[pc + 2] * BLOCK;
+                    int b = code[pc + 3] * BLOCK;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = r[a + j] / r[b + j];
+                    }
+                    pc += 4;
+                    break;
+                }
+                case POW: {
+                    int d = code[pc + 1] * BLOCK;
+                    int a = code[pc + 2] * BLOCK;
+                    int b = code[pc + 3] * BLOCK;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = Kernels.pow(r[a + j], r[b + j]);
+                    }
+                    pc += 4;
+                    break;
+                }
+                case FN: {
+                    int d = code[pc + 1] * BLOCK;
+                    Function f = FUNCTIONS[code[pc + 2]];
+                    int a = code[pc + 3] * BLOCK;
+                    for (int j = 0; j < m; j++) {
+                        r[d + j] = f.apply(r[a + j]);
+                    }
+                    pc += 4;
+                    break;
+                }
+                case STORE: {
+                    int target = code[pc + 1];
+                    int index = code[pc + 2];
+                    int a = code[pc + 3] * BLOCK;
+                    double[] out;
+                    int stride;
+                    if (target == TO_RESIDUAL) {
+                        out = res;
+                        stride = laws;
+                    } else if (target == TO_JY) {
+                        out = jy;
+                        stride = outColumns.length;
+                    } else {
+                        out = jx;
+                        stride = inColumns.length;
+                    }
+                    if (out != null) {
+                        int base = s0 * stride + index;
+                        for (int j = 0; j < m; j++) {
+                            out[base + j * stride] = r[a + j];
+                        }
+                    }
+                    pc += 4;
+                    break;
+                }
+                case MAXABS: {
+                    int index = code[pc + 1];
+                    int n = code[pc + 2];
+                    if (scale != null) {
+                        int base = s0 * laws + index;
+                        for (int j = 0; j < m; j++) {
+                            double mx = 0;
+                            for (int a = 0; a < n; a++) {
+                                mx = Math.max(mx, Math.abs(r[code[pc + 3 + a] * BLOCK + j]));
+                            }
+                            scale[base + j * laws] = mx;
+                        }
+                    }
+                    pc += 3 + n;
+                    break;
+                }
+                default:
+                    throw new AssertionError(op);
+            }
+        }
+    }
+}

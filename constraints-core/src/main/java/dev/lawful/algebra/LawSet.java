@@ -1,0 +1,358 @@
+package dev.lawful.algebra;
+
+import java.io.IOException;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.ArrayList;
+import java.util.Collections;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Optional;
+
+/**
+ * An immutable, checked set of laws with its declarations: inputs x, outputs y, constants, definitions, laws and
+ * optionally which outputs the layer completes. Built from law text ({@link #parse(String, String)},
+ * {@link #read(Path)}) or with {@link #builder()}; both give equal law sets for the same statements, and
+ * {@link #toString()} prints law text that parses back to an equal law set.
+ *
+ * <p>Flat layout: input elements are numbered in declaration order (a vector contributes its elements in order),
+ * and so are output elements; {@link #inputNames()} and {@link #outputNames()} give each element's name,
+ * {@code name} for a scalar and {@code name[i]} for a vector element. Values are in the declared units.
+ *
+ * <p>Equality compares the declarations only (not where they came from).
+ */
+public final class LawSet {
+    private final List<Declaration> declarations;
+    private final List<Diagnostic> warnings;
+    private final Map<String, Checker.LawInfo> lawInfo;
+    private final List<Declaration.Variable> inputs = new ArrayList<>();
+    private final List<Declaration.Variable> outputs = new ArrayList<>();
+    private final Map<String, Integer> inputOffsets = new LinkedHashMap<>();
+    private final Map<String, Integer> outputOffsets = new LinkedHashMap<>();
+    private final List<String> inputNames = new ArrayList<>();
+    private final List<String> outputNames = new ArrayList<>();
+    private final ExpandedLaws expanded;
+    private volatile LawEvaluator evaluator;
+
+    private LawSet(List<Declaration> declarations, List<Diagnostic> warnings, Map<String, Checker.LawInfo> lawInfo,
+                   Parser.Places places, Diagnostics diagnostics) {
+        this.declarations = List.copyOf(declarations);
+        this.warnings = List.copyOf(warnings);
+        this.lawInfo = Collections.unmodifiableMap(new LinkedHashMap<>(lawInfo));
+        for (Declaration d : declarations) {
+            if (d instanceof Declaration.Variable v) {
+                boolean in = v.role() == Declaration.Role.INPUT;
+                (in ? inputs : outputs).add(v);
+                List<String> names = in ? inputNames : outputNames;
+                (in ? inputOffsets : outputOffsets).put(v.name(), names.size());
+                for (int i = 0; i < v.size(); i++) {
+                    names.add(v.vector() ? v.name() + "[" + i + "]" : v.name());
+                }
+            }
+        }
+        List<String> all = new ArrayList<>(inputNames);
+        all.addAll(outputNames);
+        TermPool pool = new TermPool(all.toArray(new String[0]));
+        Expander expander = new Expander(this, pool);
+        try {
+            this.expanded = new ExpandedLaws(this, pool, expander.expand(), all.toArray(new String[0]), expander);
+        } catch (TermPool.TooLarge tooLarge) {
+            diagnostics.error(new Span(0, 0), "the laws expand into more than " + Limits.MAX_SCALAR_NODES
+                    + " scalar expression nodes; use fewer or shorter vector laws");
+            diagnostics.throwIfErrors();
+            throw new AssertionError();
+        }
+    }
+
+    /**
+     * Parses and checks law text.
+     *
+     * @param sourceName shown in diagnostics, usually the file name
+     * @param text       the law text
+     * @return the checked law set
+     * @throws LawException with every error found (positions, source lines and carets)
+     */
+    public static LawSet parse(String sourceName, String text) {
+        SourceText source = new SourceText(sourceName, text);
+        Diagnostics diagnostics = new Diagnostics(source);
+        if (text.length() > Limits.MAX_SOURCE_CHARS) {
+            Diagnostics tooLong = new Diagnostics(new SourceText(sourceName, ""));
+            tooLong.error(new Span(0, 0), "law text of " + text.length() + " characters exceeds the limit of "
+                    + Limits.MAX_SOURCE_CHARS);
+            tooLong.throwIfErrors();
+        }
+        Parser.Result parsed = new Parser(diagnostics).parseFile();
+        Checker checker = new Checker(diagnostics, parsed.places());
+        checker.check(parsed.declarations());
+        diagnostics.throwIfErrors();
+        List<Diagnostic> warnings = diagnostics.all();
+        return new LawSet(parsed.declarations(), warnings, checker.laws, parsed.places(), diagnostics);
+    }
+
+    /**
+     * Reads, parses and checks a law file (UTF-8).
+     *
+     * @throws IOException when the file cannot be read
+     * @throws LawException with every error found, or when the file is larger than the source limit
+     */
+    public static LawSet read(Path file) throws IOException {
+        String name = file.toString();
+        long size = Files.size(file);
+        if (size > 4L * Limits.MAX_SOURCE_CHARS) {
+            Diagnostics d = new Diagnostics(new SourceText(name, ""));
+            d.error(new Span(0, 0), "law file of " + size + " bytes exceeds the limit of " + Limits.MAX_SOURCE_CHARS
+                    + " characters");
+            d.throwIfErrors();
+        }
+        return parse(name, new String(Files.readAllBytes(file), StandardCharsets.UTF_8));
+    }
+
+    /** @return a builder that assembles a law set statement by statement */
+    public static LawSetBuilder builder() {
+        return new LawSetBuilder();
+    }
+
+    /**
+     * Checks declarations that were assembled in Java (for example read back from a saved model).
+     *
+     * @throws LawException when they do not form a valid law set; positions refer to their printed text
+     */
+    public static LawSet of(List<Declaration> declarations) {
+        return parse("<declarations>", render(declarations));
+    }
+
+    private static String render(List<Declaration> declarations) {
+        StringBuilder sb = new StringBuilder();
+        for (Declaration d : declarations) {
+            sb.append(d.text()).append('\n');
+        }
+        return sb.toString();
+    }
+
+    // ---- declarations ----------------------------------------------------------------------------------------
+
+    /** @return every declaration in order */
+    public List<Declaration> declarations() {
+        return declarations;
+    }
+
+    /** @return the inputs in declaration order */
+    public List<Declaration.Variable> inputs() {
+        return Collections.unmodifiableList(inputs);
+    }
+
+    /** @return the outputs in declaration order */
+    public List<Declaration.Variable> outputs() {
+        return Collections.unmodifiableList(outputs);
+    }
+
+    /** @return the constants in declaration order */
+    public List<Declaration.Constant> constants() {
+        return filter(Declaration.Constant.class);
+    }
+
+    /** @return the definitions in declaration order */
+    public List<Declaration.Definition> definitions() {
+        return filter(Declaration.Definition.class);
+    }
+
+    /** @return the laws in declaration order */
+    public List<Declaration.Law> laws() {
+        return filter(Declaration.Law.class);
+    }
+
+    /** @return the {@code complete} statement, when there is one */
+    public Optional<Declaration.Completion> completion() {
+        List<Declaration.Completion> c = filter(Declaration.Completion.class);
+        return c.isEmpty() ? Optional.empty() : Optional.of(c.get(0));
+    }
+
+    private <T extends Declaration> List<T> filter(Class<T> type) {
+        List<T> out = new ArrayList<>();
+        for (Declaration d : declarations) {
+            if (type.isInstance(d)) {
+                out.add(type.cast(d));
+            }
+        }
+        return Collections.unmodifiableList(out);
+    }
+
+    /** @return warnings found while checking (none make the law set invalid) */
+    public List<Diagnostic> warnings() {
+        return warnings;
+    }
+
+    // ---- layout ----------------------------------------------------------------------------------------------
+
+    /** @return the number of input elements per sample */
+    public int inputWidth() {
+        return inputNames.size();
+    }
+
+    /** @return the number of output elements per sample */
+    public int outputWidth() {
+        return outputNames.size();
+    }
+
+    /** @return the name of every input element: {@code name} or {@code name[i]} */
+    public List<String> inputNames() {
+        return Collections.unmodifiableList(inputNames);
+    }
+
+    /** @return the name of every output element: {@code name} or {@code name[i]} */
+    public List<String> outputNames() {
+        return Collections.unmodifiableList(outputNames);
+    }
+
+    /** @return the flat index of the first element of input {@code name} */
+    public int inputOffset(String name) {
+        return offset(inputOffsets, name, "input");
+    }
+
+    /** @return the flat index of the first element of output {@code name} */
+    public int outputOffset(String name) {
+        return offset(outputOffsets, name, "output");
+    }
+
+    private static int offset(Map<String, Integer> offsets, String name, String what) {
+        Integer o = offsets.get(name);
+        if (o == null) {
+            String near = Names.nearest(name, offsets.keySet());
+            throw new IllegalArgumentException("no " + what + " named '" + name + "'"
+                    + (near == null ? "" : "; did you mean '" + near + "'?"));
+        }
+        return o;
+    }
+
+    /**
+     * @return the output element indices named by the {@code complete} statement, in the order written (empty
+     *         when there is none)
+     */
+    public int[] completedOutputs() {
+        Optional<Declaration.Completion> c = completion();
+        if (c.isEmpty()) {
+            return new int[0];
+        }
+        List<Integer> out = new ArrayList<>();
+        for (Expr t : c.get().targets()) {
+            if (t instanceof Expr.Name n) {
+                int o = outputOffset(n.name());
+                int size = outputs.stream().filter(v -> v.name().equals(n.name())).findFirst().orElseThrow().size();
+                for (int i = 0; i < size; i++) {
+                    out.add(o + i);
+                }
+            } else if (t instanceof Expr.Index i) {
+                out.add(outputOffset(i.name()) + i.index());
+            } else {
+                Expr.Slice s = (Expr.Slice) t;
+                for (int i = s.from(); i < s.to(); i++) {
+                    out.add(outputOffset(s.name()) + i);
+                }
+            }
+        }
+        return out.stream().mapToInt(Integer::intValue).toArray();
+    }
+
+    // ---- laws ------------------------------------------------------------------------------------------------
+
+    /**
+     * @return the unit residuals of law {@code name} are reported in: the declared unit of its left side when that
+     *         follows from one declaration (or else its right side's), otherwise the coherent SI unit
+     */
+    public Unit lawUnit(String name) {
+        Checker.LawInfo info = lawInfo.get(name);
+        if (info == null) {
+            throw new IllegalArgumentException("no law named '" + name + "'");
+        }
+        return info.unit();
+    }
+
+    /** @return the number of elements of law {@code name}: 0 for a scalar law, k for a vector law of length k */
+    public int lawShape(String name) {
+        Checker.LawInfo info = lawInfo.get(name);
+        if (info == null) {
+            throw new IllegalArgumentException("no law named '" + name + "'");
+        }
+        return info.shape();
+    }
+
+    /** @return the laws expanded into scalar residual terms with their sparsity and derivatives */
+    public ExpandedLaws expand() {
+        return expanded;
+    }
+
+    /** @return the compiled batch evaluator of residuals and Jacobians (compiled once, then shared) */
+    public LawEvaluator evaluator() {
+        LawEvaluator e = evaluator;
+        if (e == null) {
+            synchronized (this) {
+                e = evaluator;
+                if (e == null) {
+                    e = LawEvaluator.compile(expanded);
+                    evaluator = e;
+                }
+            }
+        }
+        return e;
+    }
+
+    /**
+     * Expands one scalar expression in the scope of this law set, so it can be evaluated and differentiated with
+     * respect to any input or output element.
+     *
+     * @param expression law-language text, such as {@code sum(C * out) / T}
+     * @return its scalar term over this law set's variables (inputs then outputs, SI units)
+     * @throws LawException when the expression is invalid here or is a vector
+     */
+    public Term expression(String expression) {
+        String name = "expression_";
+        while (inputOffsets.containsKey(name) || outputOffsets.containsKey(name) || lawInfo.containsKey(name)
+                || toString().contains(name)) {
+            name = name + "_";
+        }
+        String prefix = "let " + name + " = ";
+        String text = toString() + prefix + expression.replace('\n', ' ').replace('\r', ' ') + "\n";
+        int lineStart = text.length() - 1 - expression.length() - prefix.length();
+        LawSet extended;
+        try {
+            extended = parse("<expression>", text);
+        } catch (LawException e) {
+            // report against the expression alone
+            Diagnostics d = new Diagnostics(new SourceText("<expression>", expression));
+            for (Diagnostic diag : e.errors()) {
+                int offset = Math.max(0, Math.min(diag.span().offset() - lineStart - prefix.length(), expression.length()));
+                d.error(new Span(offset, Math.min(diag.span().length(), expression.length() - offset)), diag.message());
+            }
+            d.throwIfErrors();
+            throw e;
+        }
+        ExpandedLaws ex = extended.expand();
+        if (ex.definitionShape(name) != 0) {
+            Diagnostics d = new Diagnostics(new SourceText("<expression>", expression));
+            d.error(new Span(0, expression.length()), "expected a scalar expression, found "
+                    + Checker.shapeText(ex.definitionShape(name)));
+            d.throwIfErrors();
+        }
+        return ex.definition(name).get(0);
+    }
+
+    // ---- text ------------------------------------------------------------------------------------------------
+
+    /** @return law text, one declaration per line, that parses back to an equal law set */
+    @Override
+    public String toString() {
+        return render(declarations);
+    }
+
+    @Override
+    public boolean equals(Object o) {
+        return o instanceof LawSet l && l.declarations.equals(declarations);
+    }
+
+    @Override
+    public int hashCode() {
+        return declarations.hashCode();
+    }
+}

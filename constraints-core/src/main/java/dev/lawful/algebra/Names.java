@@ -1,0 +1,52 @@
+package dev.lawful.algebra;
+
+/** Spelling help for diagnostics: the nearest known name to a misspelt one. */
+final class Names {
+    private Names() {
+    }
+
+    /**
+     * @return the candidate with the smallest edit distance to {@code name}, if that distance is at most a third of
+     *         the name's length (at least 1, at most 3); otherwise null
+     */
+    static String nearest(String name, Iterable<String> candidates) {
+        int limit = Math.max(1, Math.min(3, name.length() / 3));
+        String best = null;
+        int bestDistance = Integer.MAX_VALUE;
+        for (String c : candidates) {
+            if (Math.abs(c.length() - name.length()) > limit) {
+                continue;
+            }
+            int d = distance(name, c);
+            if (d < bestDistance || (d == bestDistance && best != null && c.compareTo(best) < 0)) {
+                bestDistance = d;
+                best = c;
+            }
+        }
+        return bestDistance <= limit ? best : null;
+    }
+
+    /** Optimal string alignment distance (Levenshtein with adjacent transpositions). */
+    static int distance(String a, String b) {
+        int n = a.length();
+        int m = b.length();
+        int[][] d = new int[n + 1][m + 1];
+        for (int i = 0; i <= n; i++) {
+            d[i][0] = i;
+        }
+        for (int j = 0; j <= m; j++) {
+            d[0][j] = j;
+        }
+        for (int i = 1; i <= n; i++) {
+            for (int j = 1; j <= m; j++) {
+                int cost = a.charAt(i - 1) == b.charAt(j - 1) ? 0 : 1;
+                int v = Math.min(Math.min(d[i - 1][j] + 1, d[i][j - 1] + 1), d[i - 1][j - 1] + cost);
+                if (i > 1 && j > 1 && a.charAt(i - 1) == b.charAt(j - 2) && a.charAt(i - 2) == b.charAt(j - 1)) {
+                    v = Math.min(v, d[i - 2][j - 2] + 1);
+                }
+                d[i][j] = v;
+            }
+        }
+        return d[n][m];
+    }
+}

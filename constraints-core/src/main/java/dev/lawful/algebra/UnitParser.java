@@ -1,0 +1,247 @@
+package dev.lawful.algebra;
+
+/**
+ * Parses unit text such as {@code mol/s}, {@code W m-2}, {@code J/(kg K)} or {@code kg m^2 s^-3}.
+ *
+ * <pre>
+ * unit     = "1" | product
+ * product  = factor { ( " " | "*" | "." ) factor } [ "/" factor ]
+ * factor   = atom [ exponent ]
+ * atom     = symbol | "(" product ")" | "1"
+ * exponent = [ "^" ] [ "+" | "-" ] digits        -- m2, m-2, m^2 and m^-2 are all allowed
+ * symbol   = letters, looked up in {@link UnitTable} (with an optional SI prefix)
+ * </pre>
+ *
+ * <p>Only one {@code /} per level, followed by one factor: {@code J/kg K} is ambiguous and rejected, write
+ * {@code J/(kg K)} or {@code J K/kg}. Offset units (degC, degF) are rejected with the advice to use K.
+ */
+final class UnitParser {
+    private final Diagnostics diagnostics;
+    private final String text;
+    private final int end;
+    private int pos;
+    private final int start;
+
+    /**
+     * @param diagnostics receives errors, with positions in the whole source
+     * @param start       first character of the unit text in the source
+     * @param end         one past the last character
+     */
+    UnitParser(Diagnostics diagnostics, int start, int end) {
+        this.diagnostics = diagnostics;
+        this.text = diagnostics.source().text();
+        this.start = start;
+        this.end = end;
+        this.pos = start;
+    }
+
+    /** @return the parsed unit, or {@link Unit#NONE} after reporting an error */
+    Unit parse() {
+        String written = normalise(text.substring(start, end));
+        if (written.isEmpty()) {
+            return Unit.NONE;
+        }
+        double[] factor = {1.0};
+        Dimension[] dim = {Dimension.NONE};
+        int errorsBefore = errorCount();
+        if (!product(factor, dim, 0)) {
+            return Unit.NONE;
+        }
+        skipSpaces();
+        if (pos < end) {
+            error(new Span(pos, 1), "expected a unit symbol, found '" + text.charAt(pos) + "' in unit '"
+                    + written + "'");
+            return Unit.NONE;
+        }
+        if (errorCount() != errorsBefore) {
+            return Unit.NONE;
+        }
+        if (dim[0].maxAbsExponent() > Limits.MAX_UNIT_EXPONENT) {
+            error(new Span(start, end - start), "unit exponent too large in '" + written + "' (limit "
+                    + Limits.MAX_UNIT_EXPONENT + ")");
+            return Unit.NONE;
+        }
+        if (!(factor[0] > 0) || Double.isInfinite(factor[0]) || factor[0] < Double.MIN_NORMAL) {
+            error(new Span(start, end - start), "unit '" + written + "' is out of the range of double");
+            return Unit.NONE;
+        }
+        return new Unit(written, factor[0], dim[0]);
+    }
+
+    private int errors;
+
+    private int errorCount() {
+        return errors;
+    }
+
+    /** @return whether {@link #parse()} reported an error */
+    boolean failed() {
+        return errors > 0;
+    }
+
+    private void error(Span span, String message) {
+        errors++;
+        diagnostics.error(span, message);
+    }
+
+    static String normalise(String s) {
+        return s.trim().replaceAll("\\s+", " ");
+    }
+
+    private boolean product(double[] factor, Dimension[] dim, int depth) {
+        if (depth > 16) {
+            error(new Span(pos, 1), "unit nested too deeply (limit 16 parentheses)");
+            return false;
+        }
+        if (!factor(factor, dim, depth)) {
+            return false;
+        }
+        boolean divided = false;
+        while (true) {
+            int save = pos;
+            skipSpaces();
+            if (pos >= end || text.charAt(pos) == ')') {
+                pos = save;
+                return true;
+            }
+            char c = text.charAt(pos);
+            boolean divide = false;
+            int opAt = pos;
+            if (c == '*' || c == '.' || c == '\u00b7') {
+                pos++;
+            } else if (c == '/') {
+                pos++;
+                divide = true;
+            }
+            if (divided) {
+                error(new Span(opAt, 1), "ambiguous unit: a '/' must be followed by one factor only; use parentheses,"
+                        + " as in J/(kg K)");
+                return false;
+            }
+            skipSpaces();
+            double[] f = {1.0};
+            Dimension[] d = {Dimension.NONE};
+            if (!factor(f, d, depth)) {
+                return false;
+            }
+            if (divide) {
+                factor[0] /= f[0];
+                dim[0] = dim[0].over(d[0]);
+                divided = true;
+            } else {
+                factor[0] *= f[0];
+                dim[0] = dim[0].times(d[0]);
+            }
+        }
+    }
+
+    private boolean factor(double[] factor, Dimension[] dim, int depth) {
+        skipSpaces();
+        if (pos >= end) {
+            error(new Span(Math.min(pos, end), 0), "expected a unit symbol, found the end of the unit");
+            return false;
+        }
+        char c = text.charAt(pos);
+        double f;
+        Dimension d;
+        if (c == '(') {
+            int open = pos;
+            pos++;
+            double[] inner = {1.0};
+            Dimension[] innerDim = {Dimension.NONE};
+            if (!product(inner, innerDim, depth + 1)) {
+                return false;
+            }
+            skipSpaces();
+            if (pos >= end || text.charAt(pos) != ')') {
+                error(new Span(open, 1), "unclosed '(' in unit");
+                return false;
+            }
+            pos++;
+            f = inner[0];
+            d = innerDim[0];
+        } else if (c == '1') {
+            pos++;
+            f = 1.0;
+            d = Dimension.NONE;
+        } else if (isSymbolChar(c)) {
+            int s = pos;
+            while (pos < end && isSymbolChar(text.charAt(pos))) {
+                pos++;
+            }
+            String symbol = text.substring(s, pos);
+            UnitTable.Entry e = UnitTable.lookup(symbol);
+            if (e == null) {
+                error(new Span(s, pos - s), unknownSymbol(symbol));
+                return false;
+            }
+            f = e.factor();
+            d = e.dimension();
+        } else {
+            error(new Span(pos, 1), "expected a unit symbol, found '" + c + "'");
+            return false;
+        }
+        int k = exponent();
+        if (k == Integer.MIN_VALUE) {
+            return false;
+        }
+        factor[0] = Math.pow(f, k);
+        dim[0] = d.pow(k);
+        return true;
+    }
+
+    private static String unknownSymbol(String symbol) {
+        String lower = symbol.toLowerCase(java.util.Locale.ROOT);
+        if (lower.equals("degc") || lower.equals("celsius") || lower.equals("degf") || lower.equals("fahrenheit")
+                || symbol.equals("\u00b0C") || symbol.equals("\u00b0F")) {
+            return "unit '" + symbol + "' has an offset from zero; write temperatures in K";
+        }
+        String near = Names.nearest(symbol, UnitTable.symbols());
+        return "unknown unit '" + symbol + "'" + (near == null ? "" : "; did you mean '" + near + "'?");
+    }
+
+    /** @return the exponent (1 when none is written), or MIN_VALUE after an error */
+    private int exponent() {
+        if (pos >= end) {
+            return 1;
+        }
+        int s = pos;
+        boolean caret = text.charAt(pos) == '^';
+        if (caret) {
+            pos++;
+        }
+        int sign = 1;
+        if (pos < end && (text.charAt(pos) == '-' || text.charAt(pos) == '+')) {
+            sign = text.charAt(pos) == '-' ? -1 : 1;
+            pos++;
+        }
+        int digitsStart = pos;
+        while (pos < end && Character.isDigit(text.charAt(pos)) && text.charAt(pos) < 128) {
+            pos++;
+        }
+        if (pos == digitsStart) {
+            if (caret || pos != s) {
+                error(new Span(s, Math.max(1, pos - s)), "expected an integer exponent in unit");
+                return Integer.MIN_VALUE;
+            }
+            return 1;
+        }
+        String digits = text.substring(digitsStart, pos);
+        if (digits.length() > 3 || Integer.parseInt(digits) > Limits.MAX_UNIT_EXPONENT) {
+            error(new Span(s, pos - s), "unit exponent too large (limit " + Limits.MAX_UNIT_EXPONENT + ")");
+            return Integer.MIN_VALUE;
+        }
+        return sign * Integer.parseInt(digits);
+    }
+
+    private void skipSpaces() {
+        while (pos < end && Character.isWhitespace(text.charAt(pos))) {
+            pos++;
+        }
+    }
+
+    private static boolean isSymbolChar(char c) {
+        return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '\u00b5' || c == '\u03bc' || c == '\u03a9'
+                || c == '\u00b0';
+    }
+}
