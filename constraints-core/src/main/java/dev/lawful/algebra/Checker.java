@@ -40,6 +40,7 @@ final class Checker {
     private final Parser.Places places;
     private final Map<String, Symbol> symbols = new LinkedHashMap<>();
     private final Map<String, Integer> lawLines = new LinkedHashMap<>();
+    private final Map<String, Integer> laterNames = new LinkedHashMap<>();
     final Map<String, LawInfo> laws = new LinkedHashMap<>();
     private int completionLine = -1;
 
@@ -49,6 +50,13 @@ final class Checker {
     }
 
     void check(List<Declaration> declarations) {
+        for (Declaration d : declarations) {
+            String name = d instanceof Declaration.Variable v ? v.name() : d instanceof Declaration.Constant c ? c.name()
+                    : d instanceof Declaration.Definition def ? def.name() : null;
+            if (name != null) {
+                laterNames.putIfAbsent(name, diagnostics.source().line(spanOf(d).offset()));
+            }
+        }
         for (Declaration d : declarations) {
             if (diagnostics.full()) {
                 return;
@@ -201,6 +209,11 @@ final class Checker {
 
     private Symbol lookup(String name, Span at) {
         Symbol s = symbols.get(name);
+        if (s == null && laterNames.containsKey(name)) {
+            diagnostics.error(at, "'" + name + "' is used before its declaration at line " + laterNames.get(name)
+                    + "; declare it first");
+            return null;
+        }
         if (s == null) {
             String near = Names.nearest(name, symbols.keySet());
             diagnostics.error(at, "unknown name '" + name + "'" + (near == null ? "" : "; did you mean '" + near + "'?"));

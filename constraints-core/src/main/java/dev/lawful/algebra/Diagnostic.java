@@ -26,7 +26,8 @@ public record Diagnostic(Severity severity, SourceText source, Span span, String
     /**
      * Formats the finding as three lines: {@code name:line:column: message} (warnings say {@code warning:} before
      * the message), the source line, and carets under the place (one caret per character of the span on that
-     * line, at least one).
+     * line, at least one). A line longer than 120 characters is shown as a 120-character window around the place,
+     * with {@code ...} where it was cut.
      *
      * @return the formatted finding, ending without a newline
      */
@@ -34,20 +35,33 @@ public record Diagnostic(Severity severity, SourceText source, Span span, String
         int line = line();
         int column = column();
         String text = source.lineText(line);
+        int at = column - 1;
+        int from = 0;
+        int to = text.length();
+        if (text.length() > MAX_SHOWN) {
+            // very long lines are shown as a window around the place, marked with ellipses
+            from = Math.max(0, Math.min(at - MAX_SHOWN / 2, text.length() - MAX_SHOWN));
+            to = Math.min(text.length(), from + MAX_SHOWN);
+        }
+        String head = from > 0 ? "..." : "";
         StringBuilder sb = new StringBuilder();
         sb.append(source.name()).append(':').append(line).append(':').append(column).append(": ");
         if (severity == Severity.WARNING) {
             sb.append("warning: ");
         }
         sb.append(message).append('\n');
-        sb.append(text).append('\n');
-        for (int i = 1; i < column; i++) {
-            sb.append(i - 1 < text.length() && text.charAt(i - 1) == '\t' ? '\t' : ' ');
+        sb.append(head).append(text, from, to).append(to < text.length() ? "..." : "").append('\n');
+        sb.append(" ".repeat(head.length()));
+        for (int i = from; i < at; i++) {
+            sb.append(i < text.length() && text.charAt(i) == '\t' ? '\t' : ' ');
         }
-        int carets = Math.max(1, Math.min(span.length(), text.length() - column + 1));
+        int carets = Math.max(1, Math.min(span.length(), to - at));
         sb.append("^".repeat(carets));
         return sb.toString();
     }
+
+    /** Longest part of a source line shown under a message. */
+    private static final int MAX_SHOWN = 120;
 
     @Override
     public String toString() {
