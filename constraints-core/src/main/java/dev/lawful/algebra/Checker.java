@@ -43,6 +43,8 @@ final class Checker {
     private final Map<String, Integer> laterNames = new LinkedHashMap<>();
     final Map<String, LawInfo> laws = new LinkedHashMap<>();
     private int completionLine = -1;
+    /** "law 'x': " or "definition 'q': " while checking one, so a message names what it is about */
+    private String context = "";
 
     Checker(Diagnostics diagnostics, Parser.Places places) {
         this.diagnostics = diagnostics;
@@ -54,13 +56,10 @@ final class Checker {
             String name = d instanceof Declaration.Variable v ? v.name() : d instanceof Declaration.Constant c ? c.name()
                     : d instanceof Declaration.Definition def ? def.name() : null;
             if (name != null) {
-                laterNames.putIfAbsent(name, diagnostics.source().line(spanOf(d).offset()));
+                laterNames.putIfAbsent(name, spanOf(d).offset());
             }
         }
         for (Declaration d : declarations) {
-            if (diagnostics.full()) {
-                return;
-            }
             int line = diagnostics.source().line(spanOf(d).offset());
             if (d instanceof Declaration.Variable v) {
                 // a unit that did not parse is already reported: let it fit anything rather than cascade
@@ -73,7 +72,9 @@ final class Checker {
                         places.badUnits.contains(d) ? null : c.unit().dimension(),
                         c.unit(), false, false, value));
             } else if (d instanceof Declaration.Definition def) {
+                context = "definition '" + def.name() + "': ";
                 Info info = expr(def.expr());
+                context = "";
                 if (info != null) {
                     declare(d, def.name(), line, new Symbol(d, line, info.shape(),
                             info.dimension() == null ? Dimension.NONE : info.dimension(), info.unit(), false,
@@ -83,7 +84,9 @@ final class Checker {
                     declare(d, def.name(), line, new Symbol(d, line, -1, null, null, false, true, null));
                 }
             } else if (d instanceof Declaration.Law law) {
+                context = "law '" + law.name() + "': ";
                 law(law, line);
+                context = "";
             } else if (d instanceof Declaration.Completion c) {
                 completion(c, line);
             }
@@ -138,7 +141,7 @@ final class Checker {
             return;
         }
         String what = "between the sides of law '" + law.name() + "'";
-        int shape = broadcast(left, right, what, spanOf(law));
+        int shape = broadcast(left, right, what, spanOf(law.rhs()));
         if (shape < 0) {
             return;
         }
@@ -189,7 +192,7 @@ final class Checker {
             for (int k = from; k < to; k++) {
                 String element = s.shape() == 0 ? name : name + "[" + k + "]";
                 if (!seen.add(element)) {
-                    diagnostics.error(spanOf(t), element + " is completed twice");
+                    diagnostics.error(spanOf(t), "'" + element + "' is completed twice");
                     break;
                 }
             }
@@ -210,8 +213,12 @@ final class Checker {
     private Symbol lookup(String name, Span at) {
         Symbol s = symbols.get(name);
         if (s == null && laterNames.containsKey(name)) {
-            diagnostics.error(at, "'" + name + "' is used before its declaration at line " + laterNames.get(name)
-                    + "; declare it first");
+            int declared = laterNames.get(name);
+            if (declared > at.offset()) {
+                diagnostics.error(at, "'" + name + "' is used before its declaration at line "
+                        + diagnostics.source().line(declared) + "; declare it first");
+            }
+            // otherwise its declaration was rejected with an error of its own
             return null;
         }
         if (s == null) {
@@ -300,8 +307,8 @@ final class Checker {
             case ADD:
             case SUB: {
                 if (l.dimension() != null && r.dimension() != null && !l.dimension().equals(r.dimension())) {
-                    diagnostics.error(spanOf(b), "unit mismatch " + what + ": left is " + describe(l) + ", right is "
-                            + describe(r));
+                    diagnostics.error(spanOf(b), context + "unit mismatch " + what + ": left is " + describe(l)
+                            + ", right is " + describe(r));
                     return null;
                 }
                 Dimension d = l.dimension() != null ? l.dimension() : r.dimension();
@@ -340,7 +347,7 @@ final class Checker {
     private Info power(Expr b, Info base, Info exponent, int shape, boolean mentions) {
         Dimension ed = exponent.dimension() == null ? Dimension.NONE : exponent.dimension();
         if (!ed.isNone()) {
-            diagnostics.error(spanOf(b), "the exponent must be dimensionless, found " + describe(exponent));
+            diagnostics.error(spanOf(b), context + "the exponent must be dimensionless, found " + describe(exponent));
             return null;
         }
         Double v = base.value() != null && exponent.value() != null ? Math.pow(base.value(), exponent.value()) : null;
@@ -349,7 +356,7 @@ final class Checker {
             return new Info(shape, Dimension.NONE, null, mentions, v);
         }
         if (exponent.value() == null || exponent.shape() != 0) {
-            diagnostics.error(spanOf(b), "a quantity in " + describe(base)
+            diagnostics.error(spanOf(b), context + "a quantity in " + describe(base)
                     + " can only be raised to a constant scalar exponent");
             return null;
         }
@@ -358,7 +365,7 @@ final class Checker {
         for (int i = 0; i < 7; i++) {
             double x = bd.exponent(i) * k;
             if (Math.abs(x - Math.rint(x)) > 1e-9 || Math.abs(x) > Limits.MAX_UNIT_EXPONENT) {
-                diagnostics.error(spanOf(b), "exponent " + ExprPrinter.number(k) + " does not give whole unit powers"
+                diagnostics.error(spanOf(b), context + "exponent " + ExprPrinter.number(k) + " does not give whole unit powers"
                         + " of " + describe(base) + (Math.abs(x) > Limits.MAX_UNIT_EXPONENT ? " within the limit of "
                         + Limits.MAX_UNIT_EXPONENT : ""));
                 return null;
@@ -383,8 +390,8 @@ final class Checker {
         if (arity < 0) {
             Symbol s = symbols.get(name);
             if (s != null) {
-                diagnostics.error(at, "'" + name + "' is " + kindOf(s) + ", not a function; write " + name
-                        + "[i] for an element");
+                diagnostics.error(at, "'" + name + "' is " + kindOf(s) + ", not a function; "
+                        + (s.shape() > 0 ? "write " + name + "[i] for an element" : "write '*' to multiply"));
             } else {
                 List<String> all = new ArrayList<>(List.of("sum", "dot", "pow"));
                 for (Function fn : Function.values()) {
@@ -429,13 +436,13 @@ final class Checker {
         switch (f.kind()) {
             case DIMENSIONLESS:
                 if (!d.isNone()) {
-                    diagnostics.error(at, "the argument of '" + name + "' must be dimensionless, found " + describe(a));
+                    diagnostics.error(at, context + "the argument of '" + name + "' must be dimensionless, found " + describe(a));
                     return null;
                 }
                 return new Info(a.shape(), Dimension.NONE, null, a.mentionsOutput(), v);
             case ROOT:
                 if (!d.hasSquareRoot()) {
-                    diagnostics.error(at, "the argument of '" + name + "' is in " + describe(a)
+                    diagnostics.error(at, context + "the argument of '" + name + "' is in " + describe(a)
                             + ", which has no square root in whole unit powers");
                     return null;
                 }
@@ -463,7 +470,7 @@ final class Checker {
             }
             if (i.dimension() != null) {
                 if (d != null && !d.equals(i.dimension())) {
-                    diagnostics.error(spanOf(e), "unit mismatch in a vector literal: earlier elements are in "
+                    diagnostics.error(spanOf(e), context + "unit mismatch in a vector literal: earlier elements are in "
                             + d + ", this one is in " + describe(i));
                     return null;
                 }
@@ -487,8 +494,9 @@ final class Checker {
         if (r.shape() == 0 || r.shape() == l.shape()) {
             return l.shape();
         }
-        diagnostics.error(at, "vector length mismatch " + what + ": left is " + shapeText(l.shape()) + ", right is "
-                + shapeText(r.shape()));
+        String prefix = what.startsWith("between") ? "" : context;
+        diagnostics.error(at, prefix + "vector length mismatch " + what + ": left is " + shapeText(l.shape())
+                + ", right is " + shapeText(r.shape()));
         return -1;
     }
 

@@ -106,23 +106,25 @@ public final class Dimension {
 
     /**
      * @return the dimension in SI base symbols with exponents, such as {@code kg m2 s-3}, or {@code 1} for a pure
-     *         number; mass first, so the common forms read naturally
+     *         number: positive exponents first, each group in the order kg m s A K mol cd
      */
     @Override
     public String toString() {
         StringBuilder sb = new StringBuilder();
         int[] order = {1, 0, 2, 3, 4, 5, 6};
-        for (int i : order) {
-            int e = exponents[i];
-            if (e == 0) {
-                continue;
-            }
-            if (sb.length() > 0) {
-                sb.append(' ');
-            }
-            sb.append(BASE_SYMBOLS[i]);
-            if (e != 1) {
-                sb.append(e);
+        for (int pass = 0; pass < 2; pass++) {
+            for (int i : order) {
+                int e = exponents[i];
+                if (e == 0 || (pass == 0) != (e > 0)) {
+                    continue;
+                }
+                if (sb.length() > 0) {
+                    sb.append(' ');
+                }
+                sb.append(BASE_SYMBOLS[i]);
+                if (e != 1) {
+                    sb.append(e);
+                }
             }
         }
         return sb.length() == 0 ? "1" : sb.toString();

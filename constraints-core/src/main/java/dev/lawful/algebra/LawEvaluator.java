@@ -35,7 +35,7 @@ public final class LawEvaluator {
     private static final int MUL = 5;
     private static final int DIV = 6;
     private static final int POW = 7;
-    private static final int SQUARE = 8;
+    private static final int POWI = 8;
     private static final int FN = 9;
     private static final int STORE = 10;
     private static final int MAXABS = 11;
@@ -60,10 +60,11 @@ public final class LawEvaluator {
 
     /** Work arrays for one thread. Reuse one per thread to evaluate without allocating. */
     public static final class Workspace {
-        private final double[] registers;
+        private final double[][] registers;
+        private final double[] scratch = new double[BLOCK];
 
         private Workspace(int registers) {
-            this.registers = new double[registers * BLOCK];
+            this.registers = new double[registers][BLOCK];
         }
     }
 
@@ -188,14 +189,17 @@ public final class LawEvaluator {
                 case DIV:
                     aux = new int[] {DIV};
                     break;
-                case POW:
-                    if (t.args[1].isConstant(2)) {
-                        aux = new int[] {SQUARE};
+                case POW: {
+                    double e = t.args[1].kind == Term.Kind.CONST ? t.args[1].value : Double.NaN;
+                    if (e == Math.rint(e) && Math.abs(e) <= Kernels.MAX_INTEGER_POWER) {
+                        // the same binary exponentiation Kernels.pow picks for this exponent
+                        aux = new int[] {POWI, (int) e};
                         args = new int[] {args[0]};
                     } else {
                         aux = new int[] {POW};
                     }
                     break;
+                }
                 case FN:
                     aux = new int[] {FN, t.function.ordinal()};
                     break;
@@ -217,7 +221,20 @@ public final class LawEvaluator {
                 defines.add(-1);
             }
         }
-        // last use of every node, then linear-scan register allocation
+        // drop values nothing reads (the constant exponent of a power turned into POWI), then find each last use
+        java.util.Set<Integer> used = new java.util.HashSet<>();
+        for (int[] u : uses) {
+            for (int a : u) {
+                used.add(a);
+            }
+        }
+        for (int k = instrs.size() - 1; k >= 0; k--) {
+            if (defines.get(k) >= 0 && !used.contains(defines.get(k))) {
+                instrs.remove(k);
+                uses.remove(k);
+                defines.remove(k);
+            }
+        }
         Map<Integer, Integer> lastUse = new HashMap<>();
         for (int k = 0; k < instrs.size(); k++) {
             for (int a : uses.get(k)) {
@@ -237,6 +254,14 @@ public final class LawEvaluator {
             for (int a = 0; a < args.length; a++) {
                 regs[a] = register.get(args[a]);
             }
+            // element-wise ops may write over an operand; a sum writes its result while it still reads the
+            // operands, so it gets a register of its own before they are freed
+            boolean inPlace = aux[0] != SUM;
+            int dst = -1;
+            int node = defines.get(k);
+            if (!inPlace) {
+                dst = freeCount > 0 ? free[--freeCount] : registers++;
+            }
             for (int a = 0; a < args.length; a++) {
                 if (lastUse.get(args[a]) == k && register.containsKey(args[a])) {
                     if (freeCount == free.length) {
@@ -245,10 +270,10 @@ public final class LawEvaluator {
                     free[freeCount++] = register.remove(args[a]);
                 }
             }
-            int dst = -1;
-            int node = defines.get(k);
             if (node >= 0) {
-                dst = freeCount > 0 ? free[--freeCount] : registers++;
+                if (inPlace) {
+                    dst = freeCount > 0 ? free[--freeCount] : registers++;
+                }
                 register.put(node, dst);
                 if (!lastUse.containsKey(node)) {
                     throw new AssertionError("node " + node + " is computed but never used");
@@ -283,8 +308,9 @@ public final class LawEvaluator {
                 return w;
             }
             case NEG:
-            case SQUARE:
-                return new int[] {aux[0], dst, regs[0]};
+                return new int[] {NEG, dst, regs[0]};
+            case POWI:
+                return new int[] {POWI, dst, regs[0], aux[1]};
             case MUL:
             case DIV:
             case POW:
@@ -438,17 +464,21 @@ public final class LawEvaluator {
 
     private void run(Program p, double[] x, double[] y, int batch, double[] res, double[] scale, double[] jy,
                      double[] jx, Workspace ws) {
-        if (ws.registers.length < p.registers() * BLOCK) {
+        if (ws.registers.length < p.registers()) {
             throw new IllegalArgumentException("workspace belongs to another evaluator; use this evaluator's "
                     + "newWorkspace()");
         }
         for (int s0 = 0; s0 < batch; s0 += BLOCK) {
-            block(p, x, y, s0, Math.min(BLOCK, batch - s0), res, scale, jy, jx, ws.registers);
+            block(p, x, y, s0, Math.min(BLOCK, batch - s0), res, scale, jy, jx, ws.registers, ws.scratch);
         }
     }
 
+    /**
+     * Runs the program on samples {@code s0 .. s0+m-1}. Each register is its own array and every loop indexes
+     * all its arrays with the same {@code j}, which lets the JIT vectorise the element-wise loops.
+     */
     private void block(Program p, double[] x, double[] y, int s0, int m, double[] res, double[] scale, double[] jy,
-                       double[] jx, double[] r) {
+                       double[] jx, double[][] r, double[] c) {
         final int[] code = p.code();
         final double[] constants = p.constants();
         final int nIn = inputWidth;
@@ -458,105 +488,113 @@ public final class LawEvaluator {
             int op = code[pc];
             switch (op) {
                 case CONST: {
-                    int d = code[pc + 1] * BLOCK;
-                    Arrays.fill(r, d, d + m, constants[code[pc + 2]]);
+                    Arrays.fill(r[code[pc + 1]], 0, m, constants[code[pc + 2]]);
                     pc += 3;
                     break;
                 }
                 case IN: {
-                    int d = code[pc + 1] * BLOCK;
+                    double[] d = r[code[pc + 1]];
                     int k = code[pc + 2] + s0 * nIn;
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = x[k + j * nIn];
+                        d[j] = x[k + j * nIn];
                     }
                     pc += 3;
                     break;
                 }
                 case OUT: {
-                    int d = code[pc + 1] * BLOCK;
+                    double[] d = r[code[pc + 1]];
                     int k = code[pc + 2] + s0 * nOut;
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = y[k + j * nOut];
+                        d[j] = y[k + j * nOut];
                     }
                     pc += 3;
                     break;
                 }
                 case SUM: {
-                    int d = code[pc + 1] * BLOCK;
+                    // compensated sum, one operand at a time across the block so the loops vectorise; per sample
+                    // the operations and their order are exactly those of Kernels.neumaier
+                    double[] d = r[code[pc + 1]];
                     int n = code[pc + 2];
-                    for (int j = 0; j < m; j++) {
-                        double s = 0;
-                        double c = 0;
-                        for (int a = 0; a < n; a++) {
-                            double v = r[code[pc + 3 + a] * BLOCK + j];
-                            double t = s + v;
-                            if (Math.abs(s) >= Math.abs(v)) {
-                                c += (s - t) + v;
-                            } else {
-                                c += (v - t) + s;
-                            }
-                            s = t;
+                    System.arraycopy(r[code[pc + 3]], 0, d, 0, m);
+                    Arrays.fill(c, 0, m, 0.0);
+                    for (int a = 1; a < n; a++) {
+                        double[] v = r[code[pc + 3 + a]];
+                        for (int j = 0; j < m; j++) {
+                            double sj = d[j];
+                            double vj = v[j];
+                            double t = sj + vj;
+                            double z = t - sj;
+                            c[j] += (sj - (t - z)) + (vj - z);
+                            d[j] = t;
                         }
-                        r[d + j] = s + c;
+                    }
+                    for (int j = 0; j < m; j++) {
+                        d[j] += c[j];
                     }
                     pc += 3 + n;
                     break;
                 }
                 case NEG: {
-                    int d = code[pc + 1] * BLOCK;
-                    int a = code[pc + 2] * BLOCK;
+                    double[] d = r[code[pc + 1]];
+                    double[] a = r[code[pc + 2]];
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = -r[a + j];
+                        d[j] = -a[j];
                     }
                     pc += 3;
                     break;
                 }
-                case SQUARE: {
-                    int d = code[pc + 1] * BLOCK;
-                    int a = code[pc + 2] * BLOCK;
-                    for (int j = 0; j < m; j++) {
-                        double v = r[a + j];
-                        r[d + j] = v * v;
+                case POWI: {
+                    double[] d = r[code[pc + 1]];
+                    double[] a = r[code[pc + 2]];
+                    int n = code[pc + 3];
+                    if (n == 2) {
+                        for (int j = 0; j < m; j++) {
+                            d[j] = a[j] * a[j];
+                        }
+                    } else {
+                        for (int j = 0; j < m; j++) {
+                            d[j] = Kernels.powi(a[j], n);
+                        }
                     }
-                    pc += 3;
+                    pc += 4;
                     break;
                 }
                 case MUL: {
-                    int d = code[pc + 1] * BLOCK;
-                    int a = code[pc + 2] * BLOCK;
-                    int b = code[pc + 3] * BLOCK;
+                    double[] d = r[code[pc + 1]];
+                    double[] a = r[code[pc + 2]];
+                    double[] b = r[code[pc + 3]];
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = r[a + j] * r[b + j];
+                        d[j] = a[j] * b[j];
                     }
                     pc += 4;
                     break;
                 }
                 case DIV: {
-                    int d = code[pc + 1] * BLOCK;
-                    int a = code[pc + 2] * BLOCK;
-                    int b = code[pc + 3] * BLOCK;
+                    double[] d = r[code[pc + 1]];
+                    double[] a = r[code[pc + 2]];
+                    double[] b = r[code[pc + 3]];
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = r[a + j] / r[b + j];
+                        d[j] = a[j] / b[j];
                     }
                     pc += 4;
                     break;
                 }
                 case POW: {
-                    int d = code[pc + 1] * BLOCK;
-                    int a = code[pc + 2] * BLOCK;
-                    int b = code[pc + 3] * BLOCK;
+                    double[] d = r[code[pc + 1]];
+                    double[] a = r[code[pc + 2]];
+                    double[] b = r[code[pc + 3]];
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = Kernels.pow(r[a + j], r[b + j]);
+                        d[j] = Kernels.pow(a[j], b[j]);
                     }
                     pc += 4;
                     break;
                 }
                 case FN: {
-                    int d = code[pc + 1] * BLOCK;
+                    double[] d = r[code[pc + 1]];
                     Function f = FUNCTIONS[code[pc + 2]];
-                    int a = code[pc + 3] * BLOCK;
+                    double[] a = r[code[pc + 3]];
                     for (int j = 0; j < m; j++) {
-                        r[d + j] = f.apply(r[a + j]);
+                        d[j] = f.apply(a[j]);
                     }
                     pc += 4;
                     break;
@@ -564,7 +602,7 @@ public final class LawEvaluator {
                 case STORE: {
                     int target = code[pc + 1];
                     int index = code[pc + 2];
-                    int a = code[pc + 3] * BLOCK;
+                    double[] a = r[code[pc + 3]];
                     double[] out;
                     int stride;
                     if (target == TO_RESIDUAL) {
@@ -580,7 +618,7 @@ public final class LawEvaluator {
                     if (out != null) {
                         int base = s0 * stride + index;
                         for (int j = 0; j < m; j++) {
-                            out[base + j * stride] = r[a + j];
+                            out[base + j * stride] = a[j];
                         }
                     }
                     pc += 4;
@@ -590,13 +628,16 @@ public final class LawEvaluator {
                     int index = code[pc + 1];
                     int n = code[pc + 2];
                     if (scale != null) {
+                        Arrays.fill(c, 0, m, 0.0);
+                        for (int a = 0; a < n; a++) {
+                            double[] v = r[code[pc + 3 + a]];
+                            for (int j = 0; j < m; j++) {
+                                c[j] = Math.max(c[j], Math.abs(v[j]));
+                            }
+                        }
                         int base = s0 * laws + index;
                         for (int j = 0; j < m; j++) {
-                            double mx = 0;
-                            for (int a = 0; a < n; a++) {
-                                mx = Math.max(mx, Math.abs(r[code[pc + 3 + a] * BLOCK + j]));
-                            }
-                            scale[base + j * laws] = mx;
+                            scale[base + j * laws] = c[j];
                         }
                     }
                     pc += 3 + n;

@@ -6,10 +6,20 @@ final class Names {
     }
 
     /**
-     * @return the candidate with the smallest edit distance to {@code name}, if that distance is at most a third of
-     *         the name's length (at least 1, at most 3); otherwise null
+     * @return a candidate that differs from {@code name} only in case; otherwise, for names of three characters
+     *         or more, the candidate with the smallest edit distance if that is at most a third of the name's
+     *         length (at least 1, at most 3); otherwise null
      */
     static String nearest(String name, Iterable<String> candidates) {
+        for (String c : candidates) {
+            if (c.equalsIgnoreCase(name) && !c.equals(name)) {
+                return c;
+            }
+        }
+        if (name.length() < 3) {
+            // one- and two-letter names are all near each other: a suggestion would be a guess
+            return null;
+        }
         int limit = Math.max(1, Math.min(3, name.length() / 3));
         String best = null;
         int bestDistance = Integer.MAX_VALUE;

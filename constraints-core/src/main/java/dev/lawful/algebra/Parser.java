@@ -79,15 +79,12 @@ final class Parser {
                 pos++;
                 continue;
             }
-            if (diagnostics.full()) {
-                break;
-            }
             int start = pos;
             recursion = 0;
             try {
                 Declaration d = statement();
                 if (peek().kind() != TokenKind.NEWLINE && peek().kind() != TokenKind.EOF) {
-                    throw unexpected(peek(), "the end of the statement");
+                    throw unexpected(peek(), "an operator or the end of the statement");
                 }
                 places.spans.put(d, span(start));
                 out.add(d);
@@ -337,6 +334,11 @@ final class Parser {
             case LPAREN: {
                 pos++;
                 Expr inner = expr();
+                if (peek().kind() == TokenKind.EOF || peek().kind() == TokenKind.NEWLINE) {
+                    diagnostics.error(t.span(), "unclosed '(': expected ')' before the end of the "
+                            + (peek().kind() == TokenKind.EOF ? "file" : "line"));
+                    throw new Abandon();
+                }
                 expect(TokenKind.RPAREN, "')' to close the '(' at column " + diagnostics.source().column(t.offset()));
                 depths.put(inner, depth(inner) + 1);
                 checkDepth(inner, start);
@@ -422,7 +424,7 @@ final class Parser {
     private void enter() {
         if (++recursion > Limits.MAX_NESTING_DEPTH) {
             diagnostics.error(peek().span(), "expression nested deeper than the limit of " + Limits.MAX_NESTING_DEPTH
-                    + " levels");
+                    + " levels; split it with 'let' definitions");
             recursion = 0;
             throw new Abandon();
         }
@@ -443,7 +445,8 @@ final class Parser {
     private void checkDepth(Expr e, int startToken) {
         if (depth(e) > Limits.MAX_NESTING_DEPTH) {
             diagnostics.error(span(startToken), "expression nested deeper than the limit of "
-                    + Limits.MAX_NESTING_DEPTH + " levels (each operator counts one; use sum() for long sums)");
+                    + Limits.MAX_NESTING_DEPTH + " levels (each operator counts one); split it with 'let' definitions"
+                    + " or use sum() for long sums");
             throw new Abandon();
         }
     }
@@ -485,7 +488,20 @@ final class Parser {
     }
 
     private Abandon unexpected(Token t, String expected) {
-        diagnostics.error(t.span(), "expected " + expected + ", found " + t.describe());
+        if (t.kind() == TokenKind.BAD) {
+            // the scanner has reported this token already
+            return new Abandon();
+        }
+        if (t.kind() == TokenKind.EOF && pos > 0) {
+            // point just after the last token rather than at an empty last line
+            Token last = tokens.get(pos - 1);
+            if (last.kind() != TokenKind.NEWLINE) {
+                diagnostics.error(new Span(last.offset() + last.length(), 0), "expected " + expected + ", found "
+                        + t.describe());
+                return new Abandon();
+            }
+        }
+        diagnostics.error(t.span(), "expected " + expected + ", found " + t.describe() + Token.hint(t));
         return new Abandon();
     }
 

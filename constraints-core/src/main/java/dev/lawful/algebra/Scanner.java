@@ -31,8 +31,15 @@ public final class Scanner {
         while (true) {
             Token t = next();
             if (t.kind() == TokenKind.NEWLINE) {
-                if (nesting > 0 || tokens.isEmpty() || continuesLine(tokens.get(tokens.size() - 1).kind())
-                        || tokens.get(tokens.size() - 1).kind() == TokenKind.NEWLINE) {
+                boolean previousIsBreak = tokens.isEmpty() || tokens.get(tokens.size() - 1).kind() == TokenKind.NEWLINE;
+                if (previousIsBreak) {
+                    continue;
+                }
+                if (startsStatement(pos)) {
+                    // a line that opens with a keyword always starts a statement (keywords never occur inside
+                    // an expression), so an unclosed bracket or a trailing operator cannot swallow the next line
+                    nesting = 0;
+                } else if (nesting > 0 || continuesLine(tokens.get(tokens.size() - 1).kind())) {
                     continue;
                 }
             }
@@ -46,6 +53,19 @@ public final class Scanner {
                 return tokens;
             }
         }
+    }
+
+    /** @return whether the line starting at {@code from} opens with a statement keyword */
+    private boolean startsStatement(int from) {
+        int i = from;
+        while (i < text.length() && (text.charAt(i) == ' ' || text.charAt(i) == '\t')) {
+            i++;
+        }
+        int start = i;
+        while (i < text.length() && isNamePart(text.charAt(i))) {
+            i++;
+        }
+        return i > start && Parser.KEYWORDS.contains(text.substring(start, i));
     }
 
     private static boolean continuesLine(TokenKind kind) {
@@ -134,30 +154,23 @@ public final class Scanner {
                     pos++;
                 }
             } else {
-                pos = mark;
-                diagnostics.error(new Span(mark, 1), "expected digits after the exponent 'e' of a number");
-                pos++;
-                return token(TokenKind.NUMBER, start, mark);
+                diagnostics.error(new Span(mark, pos - mark), "expected digits after the exponent 'e' of a number");
+                return token(TokenKind.BAD, start);
             }
         }
         if (pos < text.length() && isNameStart(text.charAt(pos))) {
-            int mark = pos;
             while (pos < text.length() && isNamePart(text.charAt(pos))) {
                 pos++;
             }
             diagnostics.error(new Span(start, pos - start), "expected a number, found '" + text.substring(start, pos)
                     + "'; put a space between a number and a name");
-            return token(TokenKind.NUMBER, start, mark);
+            return token(TokenKind.BAD, start);
         }
         return token(TokenKind.NUMBER, start);
     }
 
     private Token token(TokenKind kind, int start) {
         return new Token(kind, text.substring(start, pos), start, pos - start);
-    }
-
-    private Token token(TokenKind kind, int start, int end) {
-        return new Token(kind, text.substring(start, end), start, pos - start);
     }
 
     static boolean isNameStart(char c) {

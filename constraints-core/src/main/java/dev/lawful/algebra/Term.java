@@ -10,8 +10,9 @@ import java.util.Map;
  * expression is a DAG, never an exponentially large tree). Ids grow children-first, so every algorithm here runs
  * over id order with no recursion and no risk to the stack.
  *
- * <p>Variables are numbered in one space: inputs {@code 0 .. inputWidth-1}, then outputs. Values are in coherent
- * SI units (declared units are converted on load).
+ * <p>Variables are numbered in one space: inputs {@code 0 .. inputWidth-1}, then outputs. A variable holds a value
+ * in its declared unit; the expansion multiplies it by the unit's SI factor, so every expression above the
+ * variables computes in coherent SI units.
  */
 public final class Term {
     /** Node kinds. */
@@ -69,8 +70,9 @@ public final class Term {
      * Evaluates this expression in double precision with the same arithmetic as the compiled evaluator (sums are
      * Neumaier-compensated, functions come from {@link StrictMath}).
      *
-     * @param variables the value of every variable, inputs then outputs, in SI units
-     * @return the value
+     * @param variables the value of every variable, inputs then outputs, in their declared units (the expansion
+     *                  multiplies each by its unit's SI factor)
+     * @return the value, in coherent SI units
      */
     public double evaluate(double[] variables) {
         return pool.evaluate(this, variables);

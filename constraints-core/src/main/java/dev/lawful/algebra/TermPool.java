@@ -192,7 +192,7 @@ final class TermPool {
     Term pow(Term a, Term b) {
         if (b.kind == Term.Kind.CONST) {
             if (a.kind == Term.Kind.CONST) {
-                return constant(StrictMath.pow(a.value, b.value));
+                return constant(Kernels.pow(a.value, b.value));
             }
             if (b.value == 0) {
                 return one;

@@ -15,6 +15,31 @@ public record Token(TokenKind kind, String text, int offset, int length) {
         return new Span(offset, length);
     }
 
+    /** @return advice for characters that people type for an operator the language spells differently */
+    static String hint(Token t) {
+        if (t.kind() != TokenKind.ERROR) {
+            return "";
+        }
+        switch (t.text()) {
+            case "\u00d7":
+            case "\u00b7":
+            case "\u22c5":
+                return "; write '*' for multiplication";
+            case "\u2212":
+            case "\u2013":
+                return "; write '-' for minus";
+            case "\u00f7":
+                return "; write '/' for division";
+            case "\u00b2":
+            case "\u00b3":
+                return "; write '^2' or '^3' for powers";
+            case ";":
+                return "; write one statement per line";
+            default:
+                return "";
+        }
+    }
+
     /** @return how the token is named in "found ..." phrases of diagnostics */
     public String describe() {
         return switch (kind) {

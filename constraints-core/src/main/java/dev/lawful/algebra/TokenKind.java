@@ -6,7 +6,9 @@ public enum TokenKind {
     PLUS("'+'"), MINUS("'-'"), STAR("'*'"), SLASH("'/'"), CARET("'^'"),
     LPAREN("'('"), RPAREN("')'"), LBRACKET("'['"), RBRACKET("']'"),
     COMMA("','"), COLON("':'"), EQUALS("'='"), DOT("'.'"),
-    NEWLINE("end of line"), EOF("end of file"), ERROR("invalid character");
+    NEWLINE("end of line"), EOF("end of file"), ERROR("invalid character"),
+    /** a malformed token whose error the scanner has already reported */
+    BAD("malformed token");
 
     private final String description;
 

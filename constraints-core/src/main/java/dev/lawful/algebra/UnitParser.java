@@ -114,8 +114,9 @@ final class UnitParser {
                 divide = true;
             }
             if (divided) {
-                error(new Span(opAt, 1), "ambiguous unit: a '/' must be followed by one factor only; use parentheses,"
-                        + " as in J/(kg K)");
+                error(new Span(opAt, 1), "ambiguous unit '" + normalise(text.substring(start, end)) + "': a '/' must"
+                        + " be followed by one factor only; use parentheses, as in J/(kg K), or move the factor before"
+                        + " the '/', as in J K/kg");
                 return false;
             }
             skipSpaces();
@@ -221,10 +222,22 @@ final class UnitParser {
         }
         if (pos == digitsStart) {
             if (caret || pos != s) {
-                error(new Span(s, Math.max(1, pos - s)), "expected an integer exponent in unit");
+                String found = pos < end ? "'" + text.charAt(pos) + "'" : "the end of the unit";
+                error(new Span(pos, pos < end ? 1 : 0), "expected a whole-number exponent after '"
+                        + text.substring(s, pos) + "' in unit '" + normalise(text.substring(start, end)) + "', found "
+                        + found);
                 return Integer.MIN_VALUE;
             }
             return 1;
+        }
+        if (pos < end && text.charAt(pos) == '.' && pos + 1 < end && Character.isDigit(text.charAt(pos + 1))) {
+            int fracEnd = pos + 1;
+            while (fracEnd < end && Character.isDigit(text.charAt(fracEnd))) {
+                fracEnd++;
+            }
+            error(new Span(digitsStart, fracEnd - digitsStart), "unit exponents must be whole numbers, found '"
+                    + text.substring(digitsStart, fracEnd) + "' in unit '" + normalise(text.substring(start, end)) + "'");
+            return Integer.MIN_VALUE;
         }
         String digits = text.substring(digitsStart, pos);
         if (digits.length() > 3 || Integer.parseInt(digits) > Limits.MAX_UNIT_EXPONENT) {

@@ -120,8 +120,16 @@ final class UnitTable {
         return null;
     }
 
-    /** @return every unit symbol without prefix, for suggestions */
+    /** @return every unit symbol, and every prefixed form of the prefixable ones, for suggestions */
     static Iterable<String> symbols() {
-        return UNITS.keySet();
+        java.util.List<String> all = new java.util.ArrayList<>(UNITS.keySet());
+        for (Map.Entry<String, Entry> u : UNITS.entrySet()) {
+            if (u.getValue().prefixable()) {
+                for (String p : PREFIXES.keySet()) {
+                    all.add(p + u.getKey());
+                }
+            }
+        }
+        return all;
     }
 }
