@@ -41,6 +41,9 @@ final class Checker {
     private final Map<String, Symbol> symbols = new LinkedHashMap<>();
     private final Map<String, Integer> lawLines = new LinkedHashMap<>();
     private final Map<String, Integer> laterNames = new LinkedHashMap<>();
+    private final Set<String> used = new HashSet<>();
+    /** The unit of each definition: the declared unit it follows from, or the coherent SI unit. */
+    final Map<String, Unit> definitionUnits = new LinkedHashMap<>();
     final Map<String, LawInfo> laws = new LinkedHashMap<>();
     private int completionLine = -1;
     /** "law 'x': " or "definition 'q': " while checking one, so a message names what it is about */
@@ -76,6 +79,9 @@ final class Checker {
                 Info info = expr(def.expr());
                 context = "";
                 if (info != null) {
+                    Dimension dd = info.dimension() == null ? Dimension.NONE : info.dimension();
+                    definitionUnits.put(def.name(), info.unit() != null && info.unit().dimension().equals(dd)
+                            ? info.unit() : Units.coherent(dd));
                     declare(d, def.name(), line, new Symbol(d, line, info.shape(),
                             info.dimension() == null ? Dimension.NONE : info.dimension(), info.unit(), false,
                             info.mentionsOutput(), info.value()));
@@ -91,7 +97,18 @@ final class Checker {
                 completion(c, line);
             }
         }
+        for (Declaration d : declarations) {
+            String kind = d instanceof Declaration.Constant ? "constant" : d instanceof Declaration.Definition
+                    ? "definition" : null;
+            String name = d instanceof Declaration.Constant c ? c.name() : d instanceof Declaration.Definition def
+                    ? def.name() : null;
+            if (kind != null && symbols.containsKey(name) && symbols.get(name).declaration() == d
+                    && !used.contains(name)) {
+                diagnostics.warning(nameSpan(d), kind + " '" + name + "' is never used");
+            }
+        }
     }
+
 
     private Span spanOf(Object node) {
         Span s = places.of(node);
@@ -212,6 +229,9 @@ final class Checker {
 
     private Symbol lookup(String name, Span at) {
         Symbol s = symbols.get(name);
+        if (s != null) {
+            used.add(name);
+        }
         if (s == null && laterNames.containsKey(name)) {
             int declared = laterNames.get(name);
             if (declared > at.offset()) {

@@ -10,6 +10,7 @@ import java.util.List;
 public final class LawException extends RuntimeException {
     private static final long serialVersionUID = 1L;
     private final transient List<Diagnostic> diagnostics;
+    private final int dropped;
 
     /**
      * @param diagnostics the findings (at least one error)
@@ -18,6 +19,12 @@ public final class LawException extends RuntimeException {
     public LawException(List<Diagnostic> diagnostics, int dropped) {
         super(render(diagnostics, dropped));
         this.diagnostics = List.copyOf(diagnostics);
+        this.dropped = dropped;
+    }
+
+    /** @return how many further errors were found but not kept (beyond {@link Limits#MAX_ERRORS}) */
+    public int dropped() {
+        return dropped;
     }
 
     /** @return every finding, errors and warnings, in the order reported */

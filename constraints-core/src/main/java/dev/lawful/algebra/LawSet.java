@@ -27,6 +27,7 @@ public final class LawSet {
     private final List<Declaration> declarations;
     private final List<Diagnostic> warnings;
     private final Map<String, Checker.LawInfo> lawInfo;
+    private final Map<String, Unit> definitionUnits;
     private final List<Declaration.Variable> inputs = new ArrayList<>();
     private final List<Declaration.Variable> outputs = new ArrayList<>();
     private final Map<String, Integer> inputOffsets = new LinkedHashMap<>();
@@ -36,11 +37,10 @@ public final class LawSet {
     private final ExpandedLaws expanded;
     private volatile LawEvaluator evaluator;
 
-    private LawSet(List<Declaration> declarations, List<Diagnostic> warnings, Map<String, Checker.LawInfo> lawInfo,
-                   Parser.Places places, Diagnostics diagnostics) {
+    private LawSet(List<Declaration> declarations, Checker checker, Parser.Places places, Diagnostics diagnostics) {
         this.declarations = List.copyOf(declarations);
-        this.warnings = List.copyOf(warnings);
-        this.lawInfo = Collections.unmodifiableMap(new LinkedHashMap<>(lawInfo));
+        this.lawInfo = Collections.unmodifiableMap(new LinkedHashMap<>(checker.laws));
+        this.definitionUnits = Collections.unmodifiableMap(new LinkedHashMap<>(checker.definitionUnits));
         for (Declaration d : declarations) {
             if (d instanceof Declaration.Variable v) {
                 boolean in = v.role() == Declaration.Role.INPUT;
@@ -64,6 +64,22 @@ public final class LawSet {
             diagnostics.throwIfErrors();
             throw new AssertionError();
         }
+        // the text check sees outputs by name; only the simplified residual shows whether one really takes part
+        for (int i = 0; i < expanded.size(); i++) {
+            if (expanded.outputs(i).length == 0) {
+                Declaration.Law law = expanded.law(i);
+                Span at = places.names.get(law);
+                diagnostics.error(at == null ? new Span(0, 0) : at, "law '" + expanded.name(i)
+                        + "' does not depend on any output once simplified (its residual is "
+                        + abbreviate(expanded.residual(i).toString()) + "); a law must constrain at least one output");
+            }
+        }
+        diagnostics.throwIfErrors();
+        this.warnings = List.copyOf(diagnostics.all());
+    }
+
+    private static String abbreviate(String s) {
+        return s.length() <= 80 ? s : s.substring(0, 77) + "...";
     }
 
     /**
@@ -87,8 +103,7 @@ public final class LawSet {
         Checker checker = new Checker(diagnostics, parsed.places());
         checker.check(parsed.declarations());
         diagnostics.throwIfErrors();
-        List<Diagnostic> warnings = diagnostics.all();
-        return new LawSet(parsed.declarations(), warnings, checker.laws, parsed.places(), diagnostics);
+        return new LawSet(parsed.declarations(), checker, parsed.places(), diagnostics);
     }
 
     /**
@@ -106,7 +121,29 @@ public final class LawSet {
                     + " characters");
             d.throwIfErrors();
         }
-        return parse(name, new String(Files.readAllBytes(file), StandardCharsets.UTF_8));
+        return parse(name, decode(name, Files.readAllBytes(file)));
+    }
+
+    /** Strict UTF-8: a wrongly encoded file is an error that says where, never silently replaced characters. */
+    private static String decode(String name, byte[] bytes) {
+        java.nio.charset.CharsetDecoder decoder = StandardCharsets.UTF_8.newDecoder()
+                .onMalformedInput(java.nio.charset.CodingErrorAction.REPORT)
+                .onUnmappableCharacter(java.nio.charset.CodingErrorAction.REPORT);
+        java.nio.ByteBuffer in = java.nio.ByteBuffer.wrap(bytes);
+        java.nio.CharBuffer out = java.nio.CharBuffer.allocate(bytes.length + 1);
+        java.nio.charset.CoderResult result = decoder.decode(in, out, true);
+        if (result.isError()) {
+            int bad = in.position();
+            String lenient = new String(bytes, StandardCharsets.UTF_8);
+            int offset = new String(bytes, 0, bad, StandardCharsets.UTF_8).length();
+            Diagnostics d = new Diagnostics(new SourceText(name, lenient));
+            d.error(new Span(offset, 1), String.format("the file is not valid UTF-8: byte 0x%02X cannot start or"
+                    + " continue a character here; save the law file as UTF-8", bytes[bad] & 0xff));
+            d.throwIfErrors();
+        }
+        decoder.flush(out);
+        out.flip();
+        return out.toString();
     }
 
     /** @return a builder that assembles a law set statement by statement */
@@ -267,6 +304,18 @@ public final class LawSet {
             throw new IllegalArgumentException("no law named '" + name + "'");
         }
         return info.unit();
+    }
+
+    /**
+     * @return the unit of definition {@code name}: the declared unit its value follows from (as in {@code let q =
+     *         2 * out} with {@code out} in mol/s), otherwise the coherent SI unit of its dimension
+     */
+    public Unit definitionUnit(String name) {
+        Unit u = definitionUnits.get(name);
+        if (u == null) {
+            throw new IllegalArgumentException("no definition named '" + name + "'");
+        }
+        return u;
     }
 
     /** @return the number of elements of law {@code name}: 0 for a scalar law, k for a vector law of length k */

@@ -6,9 +6,9 @@ final class Names {
     }
 
     /**
-     * @return a candidate that differs from {@code name} only in case; otherwise, for names of three characters
-     *         or more, the candidate with the smallest edit distance if that is at most a third of the name's
-     *         length (at least 1, at most 3); otherwise null
+     * @return a candidate that differs from {@code name} only in case; otherwise, for names of one or two
+     *         characters, a candidate with one letter more; for longer names, the candidate with the smallest edit
+     *         distance if that is at most a third of the name's length (at least 1, at most 3); otherwise null
      */
     static String nearest(String name, Iterable<String> candidates) {
         for (String c : candidates) {
@@ -17,8 +17,14 @@ final class Names {
             }
         }
         if (name.length() < 3) {
-            // one- and two-letter names are all near each other: a suggestion would be a guess
-            return null;
+            // one- and two-letter names are all near each other, so only a dropped letter counts ('ot' for 'out')
+            String best = null;
+            for (String c : candidates) {
+                if (c.length() == name.length() + 1 && distance(name, c) == 1 && (best == null || c.compareTo(best) < 0)) {
+                    best = c;
+                }
+            }
+            return best;
         }
         int limit = Math.max(1, Math.min(3, name.length() / 3));
         String best = null;

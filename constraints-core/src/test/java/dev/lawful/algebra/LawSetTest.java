@@ -42,7 +42,7 @@ class LawSetTest {
                 .law("carbon", "dot(C, out)", "dot(C, feed)")
                 .law("hydrogen", "dot(H, out) = dot(H, feed)")
                 .law("oxygen", "dot(O, out)", "dot(O, feed)")
-                .law("nitrogen", "out[5] = feed[5]")
+                .law("nitrogen", "dot(N, out) = dot(N, feed)")
                 .complete("out[2]", "out[4]", "out[1]", "out[5]")
                 .build();
     }

@@ -1,0 +1,146 @@
+package dev.lawful.cli;
+
+import dev.lawful.algebra.Declaration;
+import dev.lawful.algebra.Diagnostic;
+import dev.lawful.algebra.ExpandedLaws;
+import dev.lawful.algebra.ExprPrinter;
+import dev.lawful.algebra.LawSet;
+import dev.lawful.algebra.Unit;
+import java.util.ArrayList;
+import java.util.HashSet;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import java.util.Set;
+import java.util.TreeSet;
+
+/**
+ * What {@code lawful check} reports about a valid law set, gathered once for both the readable and the JSON form.
+ *
+ * @param file        the file name as given
+ * @param inputs      the inputs in declaration order
+ * @param outputs     the outputs in declaration order
+ * @param constants   the constants in declaration order
+ * @param definitions the definitions in declaration order
+ * @param laws        the laws in declaration order
+ * @param outputWidth the number of output elements
+ * @param completed   the output elements of the {@code complete} statement, in the order written (empty when
+ *                    there is none)
+ * @param free        the other output elements, in output order
+ * @param hasCompletion whether the file has a {@code complete} statement
+ * @param warnings    the checker's warnings
+ */
+record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item> constants,
+                  List<Definition> definitions, List<Law> laws, int outputWidth, List<String> completed,
+                  List<String> free, boolean hasCompletion, List<Diagnostic> warnings) {
+
+    /**
+     * A declared input, output or constant.
+     *
+     * @param name   its name
+     * @param length its number of elements, 1 for a scalar
+     * @param unit   its unit
+     */
+    record Item(String name, int length, Unit unit) {
+    }
+
+    /**
+     * A definition ({@code let}).
+     *
+     * @param name       its name
+     * @param length     its number of elements, 1 for a scalar
+     * @param expression its value as law text
+     */
+    record Definition(String name, int length, String expression) {
+    }
+
+    /**
+     * A declared law.
+     *
+     * @param name    its name
+     * @param unit    the unit its residuals are reported in
+     * @param length  its number of scalar equations: 1 for a scalar law, k for a vector law of length k
+     * @param outputs the output elements any of its equations involves, in output order ({@code name} or
+     *                {@code name[i]})
+     */
+    record Law(String name, Unit unit, int length, List<String> outputs) {
+    }
+
+    // copy every list, so a summary never changes after it is made
+    LawSummary {
+        inputs = List.copyOf(inputs);
+        outputs = List.copyOf(outputs);
+        constants = List.copyOf(constants);
+        definitions = List.copyOf(definitions);
+        laws = List.copyOf(laws);
+        completed = List.copyOf(completed);
+        free = List.copyOf(free);
+        warnings = List.copyOf(warnings);
+    }
+
+    /**
+     * Gathers the summary of a checked law set.
+     *
+     * @param file the file name to report
+     * @param set  the law set read from it
+     * @return its summary
+     */
+    static LawSummary of(String file, LawSet set) {
+        List<Item> inputs = new ArrayList<>();
+        for (Declaration.Variable v : set.inputs()) {
+            inputs.add(new Item(v.name(), v.size(), v.unit()));
+        }
+        List<Item> outputs = new ArrayList<>();
+        for (Declaration.Variable v : set.outputs()) {
+            outputs.add(new Item(v.name(), v.size(), v.unit()));
+        }
+        List<Item> constants = new ArrayList<>();
+        for (Declaration.Constant c : set.constants()) {
+            constants.add(new Item(c.name(), c.size(), c.unit()));
+        }
+        ExpandedLaws expanded = set.expand();
+        List<Definition> definitions = new ArrayList<>();
+        for (Declaration.Definition d : set.definitions()) {
+            definitions.add(new Definition(d.name(), Math.max(1, expanded.definitionShape(d.name())),
+                    ExprPrinter.print(d.expr())));
+        }
+
+        // the scalar laws of one declared law together involve the union of their output elements
+        Map<String, Set<Integer>> involved = new LinkedHashMap<>();
+        for (int i = 0; i < expanded.size(); i++) {
+            Set<Integer> elements = involved.computeIfAbsent(expanded.law(i).name(), k -> new TreeSet<>());
+            for (int k : expanded.outputs(i)) {
+                elements.add(k);
+            }
+        }
+        List<String> outputNames = set.outputNames();
+        List<Law> laws = new ArrayList<>();
+        for (Declaration.Law l : set.laws()) {
+            List<String> names = new ArrayList<>();
+            for (int k : involved.getOrDefault(l.name(), Set.of())) {
+                names.add(outputNames.get(k));
+            }
+            laws.add(new Law(l.name(), set.lawUnit(l.name()), Math.max(1, set.lawShape(l.name())), names));
+        }
+
+        List<String> completed = new ArrayList<>();
+        Set<Integer> done = new HashSet<>();
+        for (int k : set.completedOutputs()) {
+            completed.add(outputNames.get(k));
+            done.add(k);
+        }
+        List<String> free = new ArrayList<>();
+        for (int k = 0; k < outputNames.size(); k++) {
+            if (!done.contains(k)) {
+                free.add(outputNames.get(k));
+            }
+        }
+        return new LawSummary(file, inputs, outputs, constants, definitions, laws, outputNames.size(), completed,
+                free, set.completion().isPresent(), set.warnings());
+    }
+
+    /** @return the number of scalar equations of all laws together */
+    int equations() {
+        return laws.stream().mapToInt(Law::length).sum();
+    }
+}

@@ -1,0 +1,124 @@
+package dev.lawful.cli;
+
+import java.io.PrintStream;
+import java.io.PrintWriter;
+import java.io.Writer;
+import picocli.CommandLine;
+import picocli.CommandLine.Command;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.ParameterException;
+import picocli.CommandLine.Spec;
+
+/**
+ * The {@code lawful} command line: {@code lawful check FILE.law [--json]}, {@code lawful help [COMMAND]},
+ * {@code --help} and {@code --version} on every command.
+ *
+ * <p>Exit status: {@value #EXIT_OK} on success, {@value #EXIT_INVALID} when a law file has errors,
+ * {@value #EXIT_USAGE} for a usage error or a file that cannot be read, {@value #EXIT_INTERNAL} for an internal
+ * error (a bug, printed with its stack trace).
+ */
+@Command(name = "lawful",
+        mixinStandardHelpOptions = true,
+        version = Lawful.VERSION,
+        synopsisSubcommandLabel = "COMMAND",
+        description = "Checks law files: the analytic laws (conservation of mass, energy, elements) a network's "
+                + "outputs are made to obey exactly.",
+        subcommands = {CheckCommand.class, CommandLine.HelpCommand.class},
+        commandListHeading = "%nCommands:%n",
+        exitCodeListHeading = "%nExit status:%n",
+        exitCodeList = {
+            "0:success",
+            "1:the law file has errors",
+            "2:usage error, or the file cannot be read",
+            "3:internal error (a bug)"},
+        footerHeading = "%nCaution:%n",
+        footer = "Lawful makes a surrogate obey the laws you write; it does not make the surrogate valid or safe. "
+                + "Validate it against trusted models and the applicable codes, and have it reviewed by a licensed "
+                + "professional, before it informs any real decision.")
+public final class Lawful implements Runnable {
+
+    /** The version line printed by {@code --version}. */
+    public static final String VERSION = "lawful 0.1.0-SNAPSHOT";
+
+    /** Exit status of a successful command. */
+    public static final int EXIT_OK = 0;
+    /** Exit status when a law file has errors. */
+    public static final int EXIT_INVALID = 1;
+    /** Exit status of a usage error (picocli's default for bad options) or of a file that cannot be read. */
+    public static final int EXIT_USAGE = 2;
+    /** Exit status of an internal error: an unexpected exception, which is a bug. */
+    public static final int EXIT_INTERNAL = 3;
+
+    @Spec
+    private CommandSpec spec;
+
+    /** Creates the top command; picocli calls this. */
+    public Lawful() {
+    }
+
+    /** Runs when no command is given: that is a usage error. */
+    @Override
+    public void run() {
+        throw new ParameterException(spec.commandLine(), "Missing required command (try 'lawful check FILE.law')");
+    }
+
+    /**
+     * Runs the command line and exits the JVM with its status.
+     *
+     * @param args the arguments
+     */
+    public static void main(String... args) {
+        System.exit(run(System.out, System.err, args));
+    }
+
+    /**
+     * Runs the command line without exiting, so it can be embedded and tested.
+     *
+     * @param out  receives results (summaries, JSON, help); written in this stream's own character encoding
+     * @param err  receives diagnostics and usage errors
+     * @param args the arguments, as on the command line
+     * @return the exit status: one of {@link #EXIT_OK}, {@link #EXIT_INVALID}, {@link #EXIT_USAGE},
+     *         {@link #EXIT_INTERNAL}
+     */
+    public static int run(PrintStream out, PrintStream err, String... args) {
+        PrintWriter o = writer(out);
+        PrintWriter e = writer(err);
+        CommandLine cmd = new CommandLine(new Lawful());
+        cmd.setOut(o);
+        cmd.setErr(e);
+        cmd.setExecutionExceptionHandler((ex, line, parsed) -> {
+            line.getErr().println("lawful: internal error: " + ex);
+            ex.printStackTrace(line.getErr());
+            return EXIT_INTERNAL;
+        });
+        try {
+            return cmd.execute(args);
+        } finally {
+            o.flush();
+            e.flush();
+        }
+    }
+
+    /**
+     * A writer that hands its characters to {@code stream}, so they are encoded with the stream's charset (a
+     * {@code PrintWriter} built on the stream directly would use the platform default instead).
+     */
+    private static PrintWriter writer(PrintStream stream) {
+        return new PrintWriter(new Writer() {
+            @Override
+            public void write(char[] buffer, int offset, int length) {
+                stream.print(String.valueOf(buffer, offset, length));
+            }
+
+            @Override
+            public void flush() {
+                stream.flush();
+            }
+
+            @Override
+            public void close() {
+                stream.flush();
+            }
+        });
+    }
+}

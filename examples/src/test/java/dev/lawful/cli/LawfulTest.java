@@ -1,0 +1,123 @@
+package dev.lawful.cli;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import java.io.ByteArrayOutputStream;
+import java.io.PrintStream;
+import java.nio.charset.Charset;
+import java.nio.charset.StandardCharsets;
+import org.junit.jupiter.api.Test;
+
+/** The top command: help, version, usage errors, and that nothing reaches the real standard streams. */
+class LawfulTest {
+
+    /** What one run of the command line printed, line ends normalised to {@code \n}. */
+    record Captured(int code, String out, String err) {
+    }
+
+    /** Runs the command line with both streams captured in UTF-8. */
+    static Captured run(String... args) {
+        return run(StandardCharsets.UTF_8, args);
+    }
+
+    /** Runs the command line with both streams captured in {@code charset}. */
+    static Captured run(Charset charset, String... args) {
+        ByteArrayOutputStream out = new ByteArrayOutputStream();
+        ByteArrayOutputStream err = new ByteArrayOutputStream();
+        int code = Lawful.run(new PrintStream(out, true, charset), new PrintStream(err, true, charset), args);
+        return new Captured(code, normalise(out.toString(charset)), normalise(err.toString(charset)));
+    }
+
+    private static String normalise(String s) {
+        return s.replace("\r\n", "\n");
+    }
+
+    /** @return the text with every run of white space (line ends included) made one space */
+    static String words(String s) {
+        return s.replaceAll("\\s+", " ").trim();
+    }
+
+    @Test
+    void helpListsTheCommandsAndCarriesTheCaution() {
+        Captured r = run("--help");
+        assertEquals(0, r.code());
+        assertEquals("", r.err());
+        assertTrue(r.out().startsWith("Usage: lawful [-hV] COMMAND\n"), r.out());
+        assertTrue(r.out().contains("\n  check "), r.out());
+        assertTrue(r.out().contains("\n  help "), r.out());
+        String text = words(r.out());
+        assertTrue(text.contains("Caution: Lawful makes a surrogate obey the laws you write; it does not make the"
+                + " surrogate valid or safe. Validate it against trusted models and the applicable codes, and have it"
+                + " reviewed by a licensed professional, before it informs any real decision."), text);
+        assertTrue(text.contains("Exit status: 0 success 1 the law file has errors 2 usage error, or the file cannot"
+                + " be read 3 internal error (a bug)"), text);
+        assertEquals(r.out(), run("-h").out());
+    }
+
+    @Test
+    void versionIsPrintedByEveryCommand() {
+        for (String[] args : new String[][] {{"--version"}, {"-V"}, {"check", "--version"}}) {
+            Captured r = run(args);
+            assertEquals(0, r.code(), String.join(" ", args));
+            assertEquals("lawful 0.1.0-SNAPSHOT\n", r.out());
+            assertEquals("", r.err());
+        }
+    }
+
+    @Test
+    void helpCommandShowsTheHelpOfACommand() {
+        Captured r = run("help", "check");
+        assertEquals(0, r.code());
+        assertTrue(r.out().startsWith("Usage: lawful check [-hV] [--json] FILE.law\n"), r.out());
+        assertEquals(r.out(), run("check", "--help").out());
+        assertEquals(run("--help").out(), run("help").out());
+    }
+
+    @Test
+    void noCommandIsAUsageError() {
+        Captured r = run();
+        assertEquals(2, r.code());
+        assertEquals("", r.out());
+        assertTrue(r.err().startsWith("Missing required command (try 'lawful check FILE.law')\nUsage: lawful"),
+                r.err());
+    }
+
+    @Test
+    void unknownCommandsAndOptionsAreUsageErrors() {
+        Captured option = run("--frobnicate");
+        assertEquals(2, option.code());
+        assertEquals("", option.out());
+        assertTrue(option.err().startsWith("Unknown option: '--frobnicate'\n"), option.err());
+
+        Captured command = run("frobnicate");
+        assertEquals(2, command.code());
+        assertEquals("", command.out());
+        assertTrue(command.err().contains("frobnicate"), command.err());
+        assertTrue(command.err().contains("Usage: lawful"), command.err());
+    }
+
+    @Test
+    void nothingReachesTheRealStandardStreams() {
+        PrintStream realOut = System.out;
+        PrintStream realErr = System.err;
+        ByteArrayOutputStream leaked = new ByteArrayOutputStream();
+        PrintStream trap = new PrintStream(leaked, true, StandardCharsets.UTF_8);
+        Captured help;
+        Captured bad;
+        try {
+            System.setOut(trap);
+            System.setErr(trap);
+            help = run("--help");
+            bad = run("check", "--bogus", "x.law");
+        } finally {
+            System.setOut(realOut);
+            System.setErr(realErr);
+        }
+        assertEquals("", leaked.toString(StandardCharsets.UTF_8));
+        assertEquals(0, help.code());
+        assertTrue(help.out().contains("Usage: lawful"), help.out());
+        assertEquals(2, bad.code());
+        assertTrue(bad.err().contains("Unknown option: '--bogus'"), bad.err());
+    }
+}
