@@ -35,6 +35,9 @@ public final class LawSet {
     private final List<String> inputNames = new ArrayList<>();
     private final List<String> outputNames = new ArrayList<>();
     private final ExpandedLaws expanded;
+    /** Where each declaration was written, for errors found after checking (not part of equality). */
+    private final SourceText source;
+    private final Map<Declaration, Span> places = new java.util.IdentityHashMap<>();
     private volatile LawEvaluator evaluator;
 
     private LawSet(List<Declaration> declarations, Checker checker, Parser.Places places, Diagnostics diagnostics) {
@@ -76,6 +79,36 @@ public final class LawSet {
         }
         diagnostics.throwIfErrors();
         this.warnings = List.copyOf(diagnostics.all());
+        this.source = diagnostics.source();
+        for (Declaration d : declarations) {
+            Span at = places.names.get(d);
+            this.places.put(d, at != null ? at : places.of(d) != null ? places.of(d) : new Span(0, 0));
+        }
+    }
+
+    /**
+     * Builds the library's exception for a problem found after checking (for example by an enforcer: a singular
+     * choice of completed outputs), pointing at where {@code about} was written.
+     *
+     * @param about   the declaration the problem is about, or null for the law set as a whole
+     * @param message what was expected, what was found, and the fix
+     * @return the exception, ready to throw
+     */
+    public LawException problem(Declaration about, String message) {
+        Diagnostics d = new Diagnostics(source);
+        Span at = about == null ? null : places.get(about);
+        d.error(at == null ? new Span(0, 0) : at, message);
+        return new LawException(d.all(), 0);
+    }
+
+    /** @return the law declaration named {@code name} */
+    public Declaration.Law law(String name) {
+        for (Declaration.Law l : laws()) {
+            if (l.name().equals(name)) {
+                return l;
+            }
+        }
+        throw new IllegalArgumentException("no law named '" + name + "'");
     }
 
     private static String abbreviate(String s) {
