@@ -95,6 +95,10 @@ final class Checker {
                 context = "";
             } else if (d instanceof Declaration.Completion c) {
                 completion(c, line);
+            } else if (d instanceof Declaration.Guess g) {
+                context = "guess for " + ExprPrinter.print(g.target()) + ": ";
+                guess(g);
+                context = "";
             }
         }
         for (Declaration d : declarations) {
@@ -212,6 +216,45 @@ final class Checker {
                     diagnostics.error(spanOf(t), "'" + element + "' is completed twice");
                     break;
                 }
+            }
+        }
+    }
+
+    private final Set<String> guessed = new HashSet<>();
+
+    private void guess(Declaration.Guess g) {
+        Expr t = g.target();
+        String name = t instanceof Expr.Name n ? n.name() : t instanceof Expr.Index i ? i.name() : ((Expr.Slice) t).name();
+        Symbol s = lookup(name, spanOf(t));
+        Info value = expr(g.value());
+        if (s == null || s.shape() < 0) {
+            return;
+        }
+        if (!(s.declaration() instanceof Declaration.Variable v) || v.role() != Declaration.Role.OUTPUT) {
+            diagnostics.error(spanOf(t), "'" + name + "' is " + kindOf(s) + "; guesses are for outputs");
+            return;
+        }
+        Info target = elementRef(t, s);
+        if (target == null || value == null) {
+            return;
+        }
+        if (value.shape() != 0 && value.shape() != target.shape()) {
+            diagnostics.error(spanOf(g.value()), context + "vector length mismatch: the output is "
+                    + shapeText(target.shape()) + ", the guess is " + shapeText(value.shape()));
+            return;
+        }
+        if (value.dimension() != null && target.dimension() != null && !value.dimension().equals(target.dimension())) {
+            diagnostics.error(spanOf(g.value()), context + "unit mismatch: the output is in " + describe(target)
+                    + ", the guess is in " + describe(value));
+            return;
+        }
+        int from = t instanceof Expr.Index i ? i.index() : t instanceof Expr.Slice sl ? sl.from() : 0;
+        int to = t instanceof Expr.Index i ? i.index() + 1 : t instanceof Expr.Slice sl ? sl.to() : Math.max(1, s.shape());
+        for (int k = from; k < to; k++) {
+            String element = s.shape() == 0 ? name : name + "[" + k + "]";
+            if (!guessed.add(element)) {
+                diagnostics.error(spanOf(t), "'" + element + "' has two guesses; keep one");
+                return;
             }
         }
     }

@@ -140,6 +140,29 @@ public sealed interface Declaration {
         }
     }
 
+    /**
+     * A starting value for completed outputs of a nonlinear law set, which picks the root Newton converges to
+     * (a quadratic energy law has two). The value may use inputs, constants, definitions and free outputs, never a
+     * completed output.
+     *
+     * @param target the output, element or slice the guess is for
+     * @param value  its starting value, in the output's unit (scalar, or a vector of the target's length)
+     */
+    record Guess(Expr target, Expr value) implements Declaration {
+        public Guess {
+            Objects.requireNonNull(value, "value");
+            if (!(target instanceof Expr.Name || target instanceof Expr.Index || target instanceof Expr.Slice)) {
+                throw new IllegalArgumentException("a guess is for a name, an element or a slice, found "
+                        + (target == null ? "null" : ExprPrinter.print(target)));
+            }
+        }
+
+        @Override
+        public String text() {
+            return "guess " + ExprPrinter.print(target) + " = " + ExprPrinter.print(value);
+        }
+    }
+
     private static String unitSuffix(Unit unit) {
         return unit.text().isEmpty() ? "" : " " + unit.text();
     }

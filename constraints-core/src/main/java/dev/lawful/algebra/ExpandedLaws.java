@@ -146,6 +146,14 @@ public final class ExpandedLaws {
         return expander.definitionShape(name);
     }
 
+    /**
+     * @return the starting value Newton uses for each output element that has a {@code guess}, keyed by output
+     *         element index, as a term over the variables (in the output's declared unit)
+     */
+    public Map<Integer, Term> guesses() {
+        return java.util.Collections.unmodifiableMap(expander.guesses());
+    }
+
     TermPool pool() {
         return pool;
     }

@@ -64,9 +64,33 @@ final class Expander {
                     String name = shape == 0 ? law.name() : law.name() + "[" + i + "]";
                     out.add(new ScalarLaw(name, law, shape == 0 ? -1 : i, pool.sub(l.at(i), r.at(i))));
                 }
+            } else if (d instanceof Declaration.Guess g) {
+                guess(g);
             }
         }
         return out;
+    }
+
+    private final Map<Integer, Term> guesses = new java.util.TreeMap<>();
+
+    /** The guess expressions go to the output in its declared unit: SI value divided by the unit's factor. */
+    private void guess(Declaration.Guess g) {
+        Expr t = g.target();
+        String name = t instanceof Expr.Name n ? n.name() : t instanceof Expr.Index i ? i.name() : ((Expr.Slice) t).name();
+        Declaration.Variable v = laws.outputs().stream().filter(o -> o.name().equals(name)).findFirst().orElseThrow();
+        int from = t instanceof Expr.Index i ? i.index() : t instanceof Expr.Slice sl ? sl.from() : 0;
+        int to = t instanceof Expr.Index i ? i.index() + 1 : t instanceof Expr.Slice sl ? sl.to() : v.size();
+        Values value = expr(g.value());
+        Term toDeclared = pool.constant(1.0 / v.unit().factor());
+        int base = laws.outputOffset(name);
+        for (int k = from; k < to; k++) {
+            guesses.put(base + k, pool.mul(toDeclared, value.at(k - from)));
+        }
+    }
+
+    /** @return the starting value of each guessed output element (index into the outputs), in declared units */
+    Map<Integer, Term> guesses() {
+        return guesses;
     }
 
     private Values expr(Expr e) {

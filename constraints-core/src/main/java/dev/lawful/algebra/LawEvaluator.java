@@ -57,6 +57,7 @@ public final class LawEvaluator {
     private final int[] inColumns;
     private final Program residualProgram;
     private final Program fullProgram;
+    private final Program outputJacobianProgram;
 
     /** Work arrays for one thread. Reuse one per thread to evaluate without allocating. */
     public static final class Workspace {
@@ -128,6 +129,13 @@ public final class LawEvaluator {
         List<Root> all = new ArrayList<>(residualRoots);
         all.addAll(jacobianRoots);
         this.fullProgram = assemble(all, e.pool());
+        List<Root> outputOnly = new ArrayList<>(residualRoots);
+        for (Root r : jacobianRoots) {
+            if (r.target() == TO_JY) {
+                outputOnly.add(r);
+            }
+        }
+        this.outputJacobianProgram = assemble(outputOnly, e.pool());
     }
 
     // ---- assembly --------------------------------------------------------------------------------------------
@@ -386,7 +394,8 @@ public final class LawEvaluator {
 
     /** @return a workspace large enough for every method of this evaluator */
     public Workspace newWorkspace() {
-        return new Workspace(Math.max(residualProgram.registers(), fullProgram.registers()));
+        return new Workspace(Math.max(Math.max(residualProgram.registers(), fullProgram.registers()),
+                outputJacobianProgram.registers()));
     }
 
     // ---- evaluation ------------------------------------------------------------------------------------------
@@ -424,7 +433,8 @@ public final class LawEvaluator {
     public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales, double[] jacobianY,
                          double[] jacobianX, Workspace workspace) {
         check(x, y, batch, residuals, scales, jacobianY, jacobianX);
-        Program p = jacobianY == null && jacobianX == null ? residualProgram : fullProgram;
+        // only what is asked for is computed: dC/dx entries cost nothing when jacobianX is null
+        Program p = jacobianX != null ? fullProgram : jacobianY != null ? outputJacobianProgram : residualProgram;
         run(p, x, y, batch, residuals, scales, jacobianY, jacobianX, workspace);
     }
 

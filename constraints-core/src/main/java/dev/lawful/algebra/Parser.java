@@ -17,6 +17,7 @@ import java.util.Map;
  * definition  = "let" NAME "=" expr
  * law         = "law" NAME ":" expr "=" expr
  * completion  = "complete" target { "," target }
+ * guess       = "guess" target "=" expr                 -- Newton's starting value for completed outputs
  * target      = NAME [ "[" INT [ ":" INT ] "]" ]
  * expr        = term { ( "+" | "-" ) term }
  * term        = unary { ( "*" | "/" ) unary }
@@ -49,7 +50,7 @@ final class Parser {
         }
     }
 
-    static final List<String> KEYWORDS = List.of("input", "output", "const", "let", "law", "complete");
+    static final List<String> KEYWORDS = List.of("input", "output", "const", "let", "law", "complete", "guess");
 
     private final Diagnostics diagnostics;
     private final List<Token> tokens;
@@ -113,6 +114,8 @@ final class Parser {
                     return law();
                 case "complete":
                     return completion();
+                case "guess":
+                    return guess();
                 default:
                     String near = Names.nearest(t.text(), KEYWORDS);
                     diagnostics.error(t.span(), "expected a statement (" + String.join(", ", KEYWORDS) + "), found "
@@ -246,6 +249,14 @@ final class Parser {
             targets.add(target());
         }
         return new Declaration.Completion(targets);
+    }
+
+    private Declaration guess() {
+        pos++;
+        Expr target = target();
+        expect(TokenKind.EQUALS, "'=' after the output the guess is for");
+        Expr value = expr();
+        return new Declaration.Guess(target, value);
     }
 
     private Expr target() {
