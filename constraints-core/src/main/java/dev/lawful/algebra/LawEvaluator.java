@@ -85,6 +85,45 @@ public final class LawEvaluator {
         return new LawEvaluator(expanded);
     }
 
+    /**
+     * Compiles arbitrary scalar terms of a law set (for example {@link ExpandedLaws#guesses()}) into an evaluator
+     * whose "residuals" are the terms' values; it has no Jacobian entries and its scales are the terms' magnitudes.
+     *
+     * @param expanded the law set the terms belong to
+     * @param terms    the terms, in the order their values are stored per sample
+     * @param names    one name per term, for {@link #lawName(int)}
+     */
+    public static LawEvaluator forTerms(ExpandedLaws expanded, List<Term> terms, List<String> names) {
+        return new LawEvaluator(expanded, terms, names);
+    }
+
+    private LawEvaluator(ExpandedLaws e, List<Term> terms, List<String> names) {
+        if (terms.size() != names.size()) {
+            throw new IllegalArgumentException("one name per term: " + terms.size() + " terms, " + names.size()
+                    + " names");
+        }
+        this.inputWidth = e.inputWidth();
+        this.outputWidth = e.outputWidth();
+        this.laws = terms.size();
+        this.lawNames = names.toArray(new String[0]);
+        this.outStart = new int[laws + 1];
+        this.inStart = new int[laws + 1];
+        this.outColumns = new int[0];
+        this.inColumns = new int[0];
+        List<Root> roots = new ArrayList<>();
+        for (int i = 0; i < laws; i++) {
+            Term t = terms.get(i);
+            if (t.pool != e.pool()) {
+                throw new IllegalArgumentException("term " + i + " belongs to another law set");
+            }
+            roots.add(new Root(t, TO_RESIDUAL, i, null));
+            roots.add(new Root(t, TO_SCALE, i, List.of(t)));
+        }
+        this.residualProgram = assemble(roots, e.pool());
+        this.fullProgram = residualProgram;
+        this.outputJacobianProgram = residualProgram;
+    }
+
     private LawEvaluator(ExpandedLaws e) {
         this.inputWidth = e.inputWidth();
         this.outputWidth = e.outputWidth();
