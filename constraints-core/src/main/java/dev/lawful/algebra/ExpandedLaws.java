@@ -79,12 +79,28 @@ public final class ExpandedLaws {
     }
 
     /**
-     * @return the top-level terms of the residual of law {@code i} (the addends of its flat sum); the largest of
-     *         their magnitudes is the law's natural scale, against which a residual is judged
+     * @return the top-level terms of the residual of law {@code i} (the addends of its flat sum)
      */
     public List<Term> terms(int i) {
         Term r = residual(i);
         return r.kind() == Term.Kind.SUM ? List.of(r.args()) : List.of(r);
+    }
+
+    /**
+     * @return the natural scale of law {@code i} as a term: the sum of the magnitudes of its addends once
+     *         products are distributed over sums (see {@link LawEvaluator}); residuals are judged against it
+     */
+    public Term scale(int i) {
+        return pool.magnitude(residual(i));
+    }
+
+    /**
+     * @return how many rounded operations (products, quotients, powers, functions) the deepest addend of law
+     *         {@code i} passes through; evaluating the residual in double is then accurate to
+     *         (depth + 1)·2⁻⁵³·scale
+     */
+    public int roundingDepth(int i) {
+        return pool.roundingDepth(residual(i));
     }
 
     /** @return the sorted output element indices law {@code i} involves */

@@ -38,7 +38,6 @@ public final class LawEvaluator {
     private static final int POWI = 8;
     private static final int FN = 9;
     private static final int STORE = 10;
-    private static final int MAXABS = 11;
 
     private static final int TO_RESIDUAL = 0;
     private static final int TO_SCALE = 1;
@@ -55,9 +54,13 @@ public final class LawEvaluator {
     private final int[] outColumns;
     private final int[] inStart;
     private final int[] inColumns;
-    private final Program residualProgram;
-    private final Program fullProgram;
-    private final Program outputJacobianProgram;
+    /** Every root, and one program per combination of requested results, compiled on first use. */
+    private final List<Root> roots;
+    private final TermPool pool;
+    private final java.util.concurrent.atomic.AtomicReferenceArray<Program> programs =
+            new java.util.concurrent.atomic.AtomicReferenceArray<>(16);
+    /** Registers of the largest program any combination can need (all results at once). */
+    private final int maxRegisters;
 
     /** Work arrays for one thread. Reuse one per thread to evaluate without allocating. */
     public static final class Workspace {
@@ -72,7 +75,7 @@ public final class LawEvaluator {
     private record Program(int[] code, double[] constants, int registers) {
     }
 
-    private record Root(Term term, int target, int index, List<Term> scaleTerms) {
+    private record Root(Term term, int target, int index) {
     }
 
     /**
@@ -116,12 +119,12 @@ public final class LawEvaluator {
             if (t.pool != e.pool()) {
                 throw new IllegalArgumentException("term " + i + " belongs to another law set");
             }
-            roots.add(new Root(t, TO_RESIDUAL, i, null));
-            roots.add(new Root(t, TO_SCALE, i, List.of(t)));
+            roots.add(new Root(t, TO_RESIDUAL, i));
+            roots.add(new Root(e.pool().magnitude(t), TO_SCALE, i));
         }
-        this.residualProgram = assemble(roots, e.pool());
-        this.fullProgram = residualProgram;
-        this.outputJacobianProgram = residualProgram;
+        this.roots = List.copyOf(roots);
+        this.pool = e.pool();
+        this.maxRegisters = program(MASK_ALL).registers();
     }
 
     private LawEvaluator(ExpandedLaws e) {
@@ -139,19 +142,19 @@ public final class LawEvaluator {
             for (int i = 0; i < laws; i++) {
                 lawNames[i] = e.name(i);
                 Term r = e.residual(i);
-                residualRoots.add(new Root(r, TO_RESIDUAL, i, null));
-                residualRoots.add(new Root(r, TO_SCALE, i, e.terms(i)));
+                residualRoots.add(new Root(r, TO_RESIDUAL, i));
+                residualRoots.add(new Root(e.scale(i), TO_SCALE, i));
                 Map<Integer, Term> g = new TreeMap<>(e.gradient(i));
                 // keep every structural entry, even one whose derivative is identically zero, so the pattern
                 // matches the sparsity reported by ExpandedLaws
                 for (int v : e.outputs(i)) {
                     outCols.add(v);
                     jacobianRoots.add(new Root(g.getOrDefault(inputWidth + v, e.pool().constant(0)), TO_JY,
-                            outCols.size() - 1, null));
+                            outCols.size() - 1));
                 }
                 for (int v : e.inputs(i)) {
                     inCols.add(v);
-                    jacobianRoots.add(new Root(g.getOrDefault(v, e.pool().constant(0)), TO_JX, inCols.size() - 1, null));
+                    jacobianRoots.add(new Root(g.getOrDefault(v, e.pool().constant(0)), TO_JX, inCols.size() - 1));
                 }
                 outStart[i + 1] = outCols.size();
                 inStart[i + 1] = inCols.size();
@@ -164,20 +167,37 @@ public final class LawEvaluator {
         }
         this.outColumns = outCols.stream().mapToInt(Integer::intValue).toArray();
         this.inColumns = inCols.stream().mapToInt(Integer::intValue).toArray();
-        this.residualProgram = assemble(residualRoots, e.pool());
         List<Root> all = new ArrayList<>(residualRoots);
         all.addAll(jacobianRoots);
-        this.fullProgram = assemble(all, e.pool());
-        List<Root> outputOnly = new ArrayList<>(residualRoots);
-        for (Root r : jacobianRoots) {
-            if (r.target() == TO_JY) {
-                outputOnly.add(r);
-            }
-        }
-        this.outputJacobianProgram = assemble(outputOnly, e.pool());
+        this.roots = List.copyOf(all);
+        this.pool = e.pool();
+        this.maxRegisters = program(MASK_ALL).registers();
     }
 
     // ---- assembly --------------------------------------------------------------------------------------------
+
+    private static final int MASK_ALL = 15;
+
+    private static int mask(double[] residuals, double[] scales, double[] jy, double[] jx) {
+        return (residuals != null ? 1 : 0) | (scales != null ? 2 : 0) | (jy != null ? 4 : 0) | (jx != null ? 8 : 0);
+    }
+
+    /** @return the program computing exactly the results in {@code mask} (bit per target), compiled once */
+    private Program program(int mask) {
+        Program p = programs.get(mask);
+        if (p == null) {
+            List<Root> wanted = new ArrayList<>();
+            for (Root r : roots) {
+                if ((mask & (1 << r.target())) != 0) {
+                    wanted.add(r);
+                }
+            }
+            // two threads may both compile it; the programs are equal and one wins
+            programs.compareAndSet(mask, null, assemble(wanted, pool));
+            p = programs.get(mask);
+        }
+        return p;
+    }
 
     private Program assemble(List<Root> roots, TermPool pool) {
         synchronized (pool) {
@@ -196,13 +216,7 @@ public final class LawEvaluator {
                     byId.put(t.id, t);
                 }
             }
-            int at = r.term().id;
-            if (r.scaleTerms() != null) {
-                for (Term t : r.scaleTerms()) {
-                    at = Math.max(at, t.id);
-                }
-            }
-            rootsAt.computeIfAbsent(at, k -> new ArrayList<>()).add(r);
+            rootsAt.computeIfAbsent(r.term().id, k -> new ArrayList<>()).add(r);
         }
         // instructions as (op, defined node, used nodes, aux...) before register allocation
         List<int[]> instrs = new ArrayList<>();
@@ -257,14 +271,8 @@ public final class LawEvaluator {
             uses.add(args);
             defines.add(id);
             for (Root r : rootsAt.getOrDefault(id, List.of())) {
-                if (r.target() == TO_SCALE) {
-                    int[] scaleArgs = r.scaleTerms().stream().mapToInt(x -> x.id).toArray();
-                    instrs.add(new int[] {MAXABS, r.index()});
-                    uses.add(scaleArgs);
-                } else {
-                    instrs.add(new int[] {STORE, r.target(), r.index()});
-                    uses.add(new int[] {r.term().id});
-                }
+                instrs.add(new int[] {STORE, r.target(), r.index()});
+                uses.add(new int[] {r.term().id});
                 defines.add(-1);
             }
         }
@@ -366,14 +374,6 @@ public final class LawEvaluator {
                 return new int[] {FN, dst, aux[1], regs[0]};
             case STORE:
                 return new int[] {STORE, aux[1], aux[2], regs[0]};
-            case MAXABS: {
-                int[] w = new int[3 + regs.length];
-                w[0] = MAXABS;
-                w[1] = aux[1];
-                w[2] = regs.length;
-                System.arraycopy(regs, 0, w, 3, regs.length);
-                return w;
-            }
             default:
                 throw new AssertionError(aux[0]);
         }
@@ -433,15 +433,17 @@ public final class LawEvaluator {
 
     /** @return a workspace large enough for every method of this evaluator */
     public Workspace newWorkspace() {
-        return new Workspace(Math.max(Math.max(residualProgram.registers(), fullProgram.registers()),
-                outputJacobianProgram.registers()));
+        return new Workspace(maxRegisters);
     }
 
     // ---- evaluation ------------------------------------------------------------------------------------------
 
     /**
-     * Computes each law's residual C = lhs - rhs and its natural scale (the largest magnitude among the addends of
-     * the residual's flat sum) for every sample. Allocates nothing when given a workspace.
+     * Computes each law's residual C = lhs - rhs and its natural scale for every sample. The scale is the sum of
+     * the magnitudes of the law's addends once products are distributed over sums ({@link ExpandedLaws#scale}):
+     * for {@code cp * sum(dp * dT) / g = flux} it is Σ_k |cp·dp_k·dT_k/g| + |flux|. It is at least the largest
+     * term, it is what rounding errors are proportional to, and a residual is judged relative to it. Allocates
+     * nothing when given a workspace; a null buffer is not computed at all.
      *
      * @param x         inputs, {@code batch * inputWidth} values (may be null when {@code inputWidth} is 0)
      * @param y         outputs, {@code batch * outputWidth} values
@@ -453,7 +455,7 @@ public final class LawEvaluator {
      */
     public void residuals(double[] x, double[] y, int batch, double[] residuals, double[] scales, Workspace workspace) {
         check(x, y, batch, residuals, scales, null, null);
-        run(residualProgram, x, y, batch, residuals, scales, null, null, workspace);
+        run(program(mask(residuals, scales, null, null)), x, y, batch, residuals, scales, null, null, workspace);
     }
 
     /** Like {@link #residuals(double[], double[], int, double[], double[], Workspace)}, allocating a workspace. */
@@ -472,8 +474,8 @@ public final class LawEvaluator {
     public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales, double[] jacobianY,
                          double[] jacobianX, Workspace workspace) {
         check(x, y, batch, residuals, scales, jacobianY, jacobianX);
-        // only what is asked for is computed: dC/dx entries cost nothing when jacobianX is null
-        Program p = jacobianX != null ? fullProgram : jacobianY != null ? outputJacobianProgram : residualProgram;
+        // only what is asked for is computed: a null buffer costs nothing
+        Program p = program(mask(residuals, scales, jacobianY, jacobianX));
         run(p, x, y, batch, residuals, scales, jacobianY, jacobianX, workspace);
     }
 
@@ -657,6 +659,9 @@ public final class LawEvaluator {
                     if (target == TO_RESIDUAL) {
                         out = res;
                         stride = laws;
+                    } else if (target == TO_SCALE) {
+                        out = scale;
+                        stride = laws;
                     } else if (target == TO_JY) {
                         out = jy;
                         stride = outColumns.length;
@@ -671,25 +676,6 @@ public final class LawEvaluator {
                         }
                     }
                     pc += 4;
-                    break;
-                }
-                case MAXABS: {
-                    int index = code[pc + 1];
-                    int n = code[pc + 2];
-                    if (scale != null) {
-                        Arrays.fill(c, 0, m, 0.0);
-                        for (int a = 0; a < n; a++) {
-                            double[] v = r[code[pc + 3 + a]];
-                            for (int j = 0; j < m; j++) {
-                                c[j] = Math.max(c[j], Math.abs(v[j]));
-                            }
-                        }
-                        int base = s0 * laws + index;
-                        for (int j = 0; j < m; j++) {
-                            scale[base + j * laws] = c[j];
-                        }
-                    }
-                    pc += 3 + n;
                     break;
                 }
                 default:

@@ -292,6 +292,73 @@ final class TermPool {
         }
     }
 
+    /**
+     * The magnitude of an expression's addends, used as the natural scale a residual is judged against: the sum
+     * of the absolute values of all addends once products are distributed over sums (|c|, |x|, M(a)+M(b),
+     * M(a)·M(b), M(a)/|b|; a power or function value counts as one addend). It bounds the rounding error of
+     * evaluating the expression (a running error bound), and it is at least the largest addend.
+     */
+    synchronized Term magnitude(Term root) {
+        Map<Integer, Term> m = new HashMap<>();
+        for (Term t : reachable(root)) {
+            Term v;
+            switch (t.kind) {
+                case CONST:
+                    v = constant(Math.abs(t.value));
+                    break;
+                case VAR:
+                case POW:
+                case FN:
+                    v = fn(Function.ABS, t);
+                    break;
+                case SUM: {
+                    List<Term> parts = new ArrayList<>(t.args.length);
+                    for (Term a : t.args) {
+                        parts.add(m.get(a.id));
+                    }
+                    v = sum(parts);
+                    break;
+                }
+                case NEG:
+                    v = m.get(t.args[0].id);
+                    break;
+                case MUL:
+                    v = mul(m.get(t.args[0].id), m.get(t.args[1].id));
+                    break;
+                case DIV:
+                    v = div(m.get(t.args[0].id), fn(Function.ABS, t.args[1]));
+                    break;
+                default:
+                    throw new AssertionError(t.kind);
+            }
+            m.put(t.id, v);
+        }
+        return m.get(root.id);
+    }
+
+    /**
+     * The number of rounded operations an addend passes through on its way into the expression's value: products,
+     * quotients, powers and functions count one each along the deepest path (sums are compensated and count
+     * none). With it, |computed − exact| ≤ (depth + 1)·2⁻⁵³·magnitude up to second-order terms.
+     */
+    synchronized int roundingDepth(Term root) {
+        Map<Integer, Integer> d = new HashMap<>();
+        int deepest = 0;
+        for (Term t : reachable(root)) {
+            int v = 0;
+            for (Term a : t.args) {
+                v = Math.max(v, d.get(a.id));
+            }
+            if (t.kind == Term.Kind.MUL || t.kind == Term.Kind.DIV || t.kind == Term.Kind.POW
+                    || t.kind == Term.Kind.FN) {
+                v++;
+            }
+            d.put(t.id, v);
+            deepest = v;
+        }
+        return deepest;
+    }
+
     synchronized Term derivative(Term root, int variable) {
         Term d = gradient(root).get(variable);
         return d == null ? zero : d;

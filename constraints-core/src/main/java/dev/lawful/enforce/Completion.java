@@ -25,10 +25,14 @@ import java.util.Set;
  * compensated sums.
  *
  * <p><b>Exactness.</b> With the double entry points each scalar law i holds to
- * |C_i| ≤ (m_i + 2)·2⁻⁵³·s_i, where s_i is its natural scale (the largest magnitude among its m_i addends, see
- * {@link LawEvaluator}). With the float entry points the outputs are rounded to float after enforcement in
- * double, which adds at most ½·Σ_j |∂C_i/∂y_c,j|·ulp_f32(y_c,j). These bounds are checked for every sample: a
- * sample that misses them counts as not converged.
+ * |C_i| ≤ (d_i + 3)·2⁻⁵³·s_i, where s_i is its natural scale (the sum of the magnitudes of its addends with
+ * products distributed over sums, {@link dev.lawful.algebra.ExpandedLaws#scale(int)}) and d_i its rounding depth
+ * (products, quotients, powers and functions along the deepest addend,
+ * {@link dev.lawful.algebra.ExpandedLaws#roundingDepth(int)}); for an element balance d_i is 1, so the bound is
+ * 4 double ulps of the magnitude of its terms. The bound is checked on every sample: a sample that misses it counts
+ * as not converged, never as a silent success. With the float entry points the outputs are rounded to float
+ * after enforcement in double, which adds at most ½·Σ_j |∂C_i/∂y_c,j|·ulp_f32(y_c,j) ≤ 2⁻²⁴·s_i: each law holds
+ * to about one float ulp of the magnitude of its terms.
  *
  * <p><b>Gradients</b> (identical for all tiers, from the implicit function theorem, never by unrolling Newton):
  * with upstream ḡ on the outputs, solve Aᵀλ = ḡ_c at the solution, then ḡ_z = ḡ_f − (∂C/∂z)ᵀλ and
@@ -72,8 +76,8 @@ public final class Completion {
     private final OnBadSample policy;
     private final Layout layout;
     private final int maxIterations;
-    /** Addends per scalar law (m_i of the bound). */
-    private final int[] addends;
+    /** Per scalar law, d_i + 3 of the bound, with d_i its rounding depth. */
+    private final int[] boundFactor;
     // output-Jacobian entries of the evaluator: law and completed index (or −(f+1))
     private final int[] entryLaw;
     private final int[] entryRole;
@@ -337,9 +341,9 @@ public final class Completion {
                     OutputChoice.WARN_CONDITION));
         }
         this.tier = classify();
-        this.addends = new int[n];
+        this.boundFactor = new int[n];
         for (int i = 0; i < n; i++) {
-            addends[i] = expanded.terms(i).size();
+            boundFactor[i] = expanded.roundingDepth(i) + 3;
         }
         int nnz = evaluator.outputNonzeros();
         this.entryLaw = new int[nnz];
@@ -802,7 +806,7 @@ public final class Completion {
     private boolean converged(int s, Workspace ws) {
         for (int i = 0; i < n; i++) {
             double r = ws.residual[s * n + i];
-            if (!(Math.abs(r) <= (addends[i] + 2) * EPS * ws.scale[s * n + i])) {
+            if (!(Math.abs(r) <= boundFactor[i] * EPS * ws.scale[s * n + i])) {
                 return false;
             }
         }
@@ -957,8 +961,11 @@ public final class Completion {
                         + String.join(", ", completedNames()) + " at this sample (their Jacobian block has no inverse)";
                 break;
             default:
-                what = "the residuals of " + laws + " did not reach rounding level within " + maxIterations
-                        + " Newton iterations; give a 'guess' for the completed outputs or check the inputs";
+                what = tier == Tier.NONLINEAR
+                        ? "the residuals of " + laws + " did not reach rounding level within " + maxIterations
+                        + " Newton iterations; give a 'guess' for the completed outputs or check the inputs"
+                        : "the residuals of " + laws + " stay above rounding level after the solve and one"
+                        + " refinement (the system is nearly singular at this sample)";
                 break;
         }
         return new EnforcementException(s, code, lawNames, "sample " + s + ": " + what
