@@ -424,6 +424,11 @@ final class Checker {
             return null;
         }
         double k = exponent.value();
+        if (!Double.isFinite(k)) {
+            diagnostics.error(spanOf(b), context + "the exponent of a quantity in " + describe(base)
+                    + " evaluates to " + k + ", not a finite number");
+            return null;
+        }
         int[] e = new int[7];
         for (int i = 0; i < 7; i++) {
             double x = bd.exponent(i) * k;

@@ -68,7 +68,10 @@ public final class ExpandedLaws {
         return scalar.get(i).law();
     }
 
-    /** @return the unit residuals of scalar law {@code i} are reported in */
+    /**
+     * @return the unit scalar law {@code i} is reported in; residuals and scales are computed in coherent SI units,
+     *         so a residual in this unit is {@code residual / unit(i).factor()}
+     */
     public Unit unit(int i) {
         return laws.lawUnit(scalar.get(i).law().name());
     }

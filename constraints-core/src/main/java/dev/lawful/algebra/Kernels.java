@@ -24,7 +24,8 @@ final class Kernels {
             c += (s - (t - z)) + (v - z);
             s = t;
         }
-        return s + c;
+        // an infinite sum makes the error term NaN (∞ − ∞); the plain sum is then the right answer
+        return Double.isFinite(s) ? s + c : s;
     }
 
     /** Largest integer exponent evaluated by repeated multiplication rather than {@link StrictMath#pow}. */

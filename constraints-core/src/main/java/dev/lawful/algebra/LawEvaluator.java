@@ -5,7 +5,6 @@ import java.util.Arrays;
 import java.util.HashMap;
 import java.util.List;
 import java.util.Map;
-import java.util.TreeMap;
 
 /**
  * The laws and their Jacobians compiled into straight-line register code that runs over a batch: each instruction
@@ -54,21 +53,36 @@ public final class LawEvaluator {
     private final int[] outColumns;
     private final int[] inStart;
     private final int[] inColumns;
-    /** Every root, and one program per combination of requested results, compiled on first use. */
+    /** Roots given up front (arbitrary terms), or null when they are built from {@link #expanded} on demand. */
     private final List<Root> roots;
+    private final ExpandedLaws expanded;
+    private final java.util.concurrent.atomic.AtomicReferenceArray<List<Root>> groups =
+            new java.util.concurrent.atomic.AtomicReferenceArray<>(4);
     private final TermPool pool;
     private final java.util.concurrent.atomic.AtomicReferenceArray<Program> programs =
             new java.util.concurrent.atomic.AtomicReferenceArray<>(16);
-    /** Registers of the largest program any combination can need (all results at once). */
-    private final int maxRegisters;
 
     /** Work arrays for one thread. Reuse one per thread to evaluate without allocating. */
     public static final class Workspace {
-        private final double[][] registers;
+        private double[][] registers = new double[0][];
         private final double[] scratch = new double[BLOCK];
 
-        private Workspace(int registers) {
-            this.registers = new double[registers][BLOCK];
+        private final LawEvaluator owner;
+
+        private Workspace(LawEvaluator owner) {
+            this.owner = owner;
+        }
+
+        /** Grows to the registers a program needs; only the first call with a larger program allocates. */
+        private double[][] registers(int count) {
+            if (registers.length < count) {
+                double[][] grown = Arrays.copyOf(registers, count);
+                for (int i = registers.length; i < count; i++) {
+                    grown[i] = new double[BLOCK];
+                }
+                registers = grown;
+            }
+            return registers;
         }
     }
 
@@ -123,8 +137,8 @@ public final class LawEvaluator {
             roots.add(new Root(e.pool().magnitude(t), TO_SCALE, i));
         }
         this.roots = List.copyOf(roots);
+        this.expanded = e;
         this.pool = e.pool();
-        this.maxRegisters = program(MASK_ALL).registers();
     }
 
     private LawEvaluator(ExpandedLaws e) {
@@ -134,49 +148,74 @@ public final class LawEvaluator {
         this.lawNames = new String[laws];
         this.outStart = new int[laws + 1];
         this.inStart = new int[laws + 1];
-        List<Root> residualRoots = new ArrayList<>();
-        List<Root> jacobianRoots = new ArrayList<>();
         List<Integer> outCols = new ArrayList<>();
         List<Integer> inCols = new ArrayList<>();
-        try {
-            for (int i = 0; i < laws; i++) {
-                lawNames[i] = e.name(i);
-                Term r = e.residual(i);
-                residualRoots.add(new Root(r, TO_RESIDUAL, i));
-                residualRoots.add(new Root(e.scale(i), TO_SCALE, i));
-                Map<Integer, Term> g = new TreeMap<>(e.gradient(i));
-                // keep every structural entry, even one whose derivative is identically zero, so the pattern
-                // matches the sparsity reported by ExpandedLaws
-                for (int v : e.outputs(i)) {
-                    outCols.add(v);
-                    jacobianRoots.add(new Root(g.getOrDefault(inputWidth + v, e.pool().constant(0)), TO_JY,
-                            outCols.size() - 1));
-                }
-                for (int v : e.inputs(i)) {
-                    inCols.add(v);
-                    jacobianRoots.add(new Root(g.getOrDefault(v, e.pool().constant(0)), TO_JX, inCols.size() - 1));
-                }
-                outStart[i + 1] = outCols.size();
-                inStart[i + 1] = inCols.size();
+        // the Jacobian pattern is structural (it keeps an entry even when its derivative is identically zero), so
+        // it is known without differentiating; residuals, scales and derivatives are built when first asked for
+        for (int i = 0; i < laws; i++) {
+            lawNames[i] = e.name(i);
+            for (int v : e.outputs(i)) {
+                outCols.add(v);
             }
-        } catch (TermPool.TooLarge tooLarge) {
-            Diagnostics d = new Diagnostics(new SourceText("<derivatives>", ""));
-            d.error(new Span(0, 0), "the derivatives of the law set need more than " + Limits.MAX_SCALAR_NODES
-                    + " scalar expression nodes; split the law set or use fewer vector elements");
-            throw new LawException(d.all(), 0);
+            for (int v : e.inputs(i)) {
+                inCols.add(v);
+            }
+            outStart[i + 1] = outCols.size();
+            inStart[i + 1] = inCols.size();
         }
         this.outColumns = outCols.stream().mapToInt(Integer::intValue).toArray();
         this.inColumns = inCols.stream().mapToInt(Integer::intValue).toArray();
-        List<Root> all = new ArrayList<>(residualRoots);
-        all.addAll(jacobianRoots);
-        this.roots = List.copyOf(all);
+        this.expanded = e;
+        this.roots = null;
         this.pool = e.pool();
-        this.maxRegisters = program(MASK_ALL).registers();
+    }
+
+    /** @return the roots storing results of {@code target}, built on first use */
+    private List<Root> roots(int target) {
+        List<Root> r = groups.get(target);
+        if (r != null) {
+            return r;
+        }
+        List<Root> built = new ArrayList<>();
+        if (roots != null) {
+            for (Root root : roots) {
+                if (root.target() == target) {
+                    built.add(root);
+                }
+            }
+        } else {
+            try {
+                for (int i = 0; i < laws; i++) {
+                    if (target == TO_RESIDUAL) {
+                        built.add(new Root(expanded.residual(i), TO_RESIDUAL, i));
+                    } else if (target == TO_SCALE) {
+                        built.add(new Root(expanded.scale(i), TO_SCALE, i));
+                    } else {
+                        Map<Integer, Term> g = expanded.gradient(i);
+                        Term zero = pool.constant(0);
+                        if (target == TO_JY) {
+                            for (int k = outStart[i]; k < outStart[i + 1]; k++) {
+                                built.add(new Root(g.getOrDefault(inputWidth + outColumns[k], zero), TO_JY, k));
+                            }
+                        } else {
+                            for (int k = inStart[i]; k < inStart[i + 1]; k++) {
+                                built.add(new Root(g.getOrDefault(inColumns[k], zero), TO_JX, k));
+                            }
+                        }
+                    }
+                }
+            } catch (TermPool.TooLarge tooLarge) {
+                Diagnostics d = new Diagnostics(new SourceText("<derivatives>", ""));
+                d.error(new Span(0, 0), "the derivatives of the law set need more than " + Limits.MAX_SCALAR_NODES
+                        + " scalar expression nodes; split the law set or use fewer vector elements");
+                throw new LawException(d.all(), 0);
+            }
+        }
+        groups.compareAndSet(target, null, List.copyOf(built));
+        return groups.get(target);
     }
 
     // ---- assembly --------------------------------------------------------------------------------------------
-
-    private static final int MASK_ALL = 15;
 
     private static int mask(double[] residuals, double[] scales, double[] jy, double[] jx) {
         return (residuals != null ? 1 : 0) | (scales != null ? 2 : 0) | (jy != null ? 4 : 0) | (jx != null ? 8 : 0);
@@ -187,9 +226,9 @@ public final class LawEvaluator {
         Program p = programs.get(mask);
         if (p == null) {
             List<Root> wanted = new ArrayList<>();
-            for (Root r : roots) {
-                if ((mask & (1 << r.target())) != 0) {
-                    wanted.add(r);
+            for (int target = 0; target < 4; target++) {
+                if ((mask & (1 << target)) != 0) {
+                    wanted.addAll(roots(target));
                 }
             }
             // two threads may both compile it; the programs are equal and one wins
@@ -206,26 +245,62 @@ public final class LawEvaluator {
     }
 
     private Program assembleLocked(List<Root> roots, TermPool pool) {
-        // every node any root needs, in id order (children first)
-        java.util.TreeSet<Integer> ids = new java.util.TreeSet<>();
-        Map<Integer, Term> byId = new HashMap<>();
-        Map<Integer, List<Root>> rootsAt = new HashMap<>();
+        // every node any root needs (arrays indexed by node id: compile time stays linear in the program size)
+        int size = pool.size();
+        boolean[] needed = new boolean[size];
+        int[] stack = new int[64];
         for (Root r : roots) {
-            for (Term t : pool.reachable(r.term())) {
-                if (ids.add(t.id)) {
-                    byId.put(t.id, t);
+            int top = 0;
+            if (!needed[r.term().id]) {
+                needed[r.term().id] = true;
+                stack[top++] = r.term().id;
+            }
+            while (top > 0) {
+                Term t = pool.node(stack[--top]);
+                for (Term a : t.args) {
+                    if (!needed[a.id]) {
+                        needed[a.id] = true;
+                        if (top == stack.length) {
+                            stack = Arrays.copyOf(stack, top * 2);
+                        }
+                        stack[top++] = a.id;
+                    }
                 }
             }
-            rootsAt.computeIfAbsent(r.term().id, k -> new ArrayList<>()).add(r);
         }
-        // instructions as (op, defined node, used nodes, aux...) before register allocation
+        int[] firstRoot = new int[size];
+        Arrays.fill(firstRoot, -1);
+        int[] nextRoot = new int[roots.size()];
+        for (int k = roots.size() - 1; k >= 0; k--) {
+            int id = roots.get(k).term().id;
+            nextRoot[k] = firstRoot[id];
+            firstRoot[id] = k;
+        }
+        // which values are read: by a parent (a constant exponent folded into POWI is not) or by a store
+        boolean[] read = new boolean[size];
+        for (int id = 0; id < size; id++) {
+            if (needed[id]) {
+                Term t = pool.node(id);
+                int argCount = isIntegerPower(t) ? 1 : t.args.length;
+                for (int a = 0; a < argCount; a++) {
+                    read[t.args[a].id] = true;
+                }
+                if (firstRoot[id] >= 0) {
+                    read[id] = true;
+                }
+            }
+        }
+        // instructions (op and aux words, used nodes, defined node) in id order, children first
         List<int[]> instrs = new ArrayList<>();
         List<int[]> uses = new ArrayList<>();
-        List<Integer> defines = new ArrayList<>();
+        IntList defines = new IntList();
         List<Double> constants = new ArrayList<>();
-        for (int id : ids) {
-            Term t = byId.get(id);
-            int[] args = new int[t.args.length];
+        for (int id = 0; id < size; id++) {
+            if (!needed[id] || !read[id]) {
+                continue;
+            }
+            Term t = pool.node(id);
+            int[] args = new int[isIntegerPower(t) ? 1 : t.args.length];
             for (int k = 0; k < args.length; k++) {
                 args[k] = t.args[k].id;
             }
@@ -250,17 +325,10 @@ public final class LawEvaluator {
                 case DIV:
                     aux = new int[] {DIV};
                     break;
-                case POW: {
-                    double e = t.args[1].kind == Term.Kind.CONST ? t.args[1].value : Double.NaN;
-                    if (e == Math.rint(e) && Math.abs(e) <= Kernels.MAX_INTEGER_POWER) {
-                        // the same binary exponentiation Kernels.pow picks for this exponent
-                        aux = new int[] {POWI, (int) e};
-                        args = new int[] {args[0]};
-                    } else {
-                        aux = new int[] {POW};
-                    }
+                case POW:
+                    // a whole constant exponent uses the same binary exponentiation Kernels.pow picks for it
+                    aux = isIntegerPower(t) ? new int[] {POWI, (int) t.args[1].value} : new int[] {POW};
                     break;
-                }
                 case FN:
                     aux = new int[] {FN, t.function.ordinal()};
                     break;
@@ -270,33 +338,23 @@ public final class LawEvaluator {
             instrs.add(aux);
             uses.add(args);
             defines.add(id);
-            for (Root r : rootsAt.getOrDefault(id, List.of())) {
+            for (int k = firstRoot[id]; k >= 0; k = nextRoot[k]) {
+                Root r = roots.get(k);
                 instrs.add(new int[] {STORE, r.target(), r.index()});
-                uses.add(new int[] {r.term().id});
+                uses.add(new int[] {id});
                 defines.add(-1);
             }
         }
-        // drop values nothing reads (the constant exponent of a power turned into POWI), then find each last use
-        java.util.Set<Integer> used = new java.util.HashSet<>();
-        for (int[] u : uses) {
-            for (int a : u) {
-                used.add(a);
-            }
-        }
-        for (int k = instrs.size() - 1; k >= 0; k--) {
-            if (defines.get(k) >= 0 && !used.contains(defines.get(k))) {
-                instrs.remove(k);
-                uses.remove(k);
-                defines.remove(k);
-            }
-        }
-        Map<Integer, Integer> lastUse = new HashMap<>();
+        int[] lastUse = new int[size];
+        Arrays.fill(lastUse, -1);
         for (int k = 0; k < instrs.size(); k++) {
             for (int a : uses.get(k)) {
-                lastUse.put(a, k);
+                lastUse[a] = k;
             }
         }
-        Map<Integer, Integer> register = new HashMap<>();
+        // linear-scan register allocation over last uses
+        int[] register = new int[size];
+        Arrays.fill(register, -1);
         int[] free = new int[16];
         int freeCount = 0;
         int registers = 0;
@@ -307,7 +365,7 @@ public final class LawEvaluator {
             int[] args = uses.get(k);
             int[] regs = new int[args.length];
             for (int a = 0; a < args.length; a++) {
-                regs[a] = register.get(args[a]);
+                regs[a] = register[args[a]];
             }
             // element-wise ops may write over an operand; a sum writes its result while it still reads the
             // operands, so it gets a register of its own before they are freed
@@ -318,19 +376,20 @@ public final class LawEvaluator {
                 dst = freeCount > 0 ? free[--freeCount] : registers++;
             }
             for (int a = 0; a < args.length; a++) {
-                if (lastUse.get(args[a]) == k && register.containsKey(args[a])) {
+                if (lastUse[args[a]] == k && register[args[a]] >= 0) {
                     if (freeCount == free.length) {
                         free = Arrays.copyOf(free, freeCount * 2);
                     }
-                    free[freeCount++] = register.remove(args[a]);
+                    free[freeCount++] = register[args[a]];
+                    register[args[a]] = -1;
                 }
             }
             if (node >= 0) {
                 if (inPlace) {
                     dst = freeCount > 0 ? free[--freeCount] : registers++;
                 }
-                register.put(node, dst);
-                if (!lastUse.containsKey(node)) {
+                register[node] = dst;
+                if (lastUse[node] < 0) {
                     throw new AssertionError("node " + node + " is computed but never used");
                 }
             }
@@ -346,6 +405,31 @@ public final class LawEvaluator {
             c[i] = constants.get(i);
         }
         return new Program(Arrays.copyOf(code, length), c, Math.max(registers, 1));
+    }
+
+    private static boolean isIntegerPower(Term t) {
+        if (t.kind != Term.Kind.POW || t.args[1].kind != Term.Kind.CONST) {
+            return false;
+        }
+        double e = t.args[1].value;
+        return e == Math.rint(e) && Math.abs(e) <= Kernels.MAX_INTEGER_POWER;
+    }
+
+    /** A growable list of ints without boxing. */
+    private static final class IntList {
+        private int[] a = new int[64];
+        private int size;
+
+        void add(int v) {
+            if (size == a.length) {
+                a = Arrays.copyOf(a, size * 2);
+            }
+            a[size++] = v;
+        }
+
+        int get(int i) {
+            return a[i];
+        }
     }
 
     private static int[] encode(int[] aux, int dst, int[] regs) {
@@ -433,7 +517,7 @@ public final class LawEvaluator {
 
     /** @return a workspace large enough for every method of this evaluator */
     public Workspace newWorkspace() {
-        return new Workspace(maxRegisters);
+        return new Workspace(this);
     }
 
     // ---- evaluation ------------------------------------------------------------------------------------------
@@ -515,12 +599,13 @@ public final class LawEvaluator {
 
     private void run(Program p, double[] x, double[] y, int batch, double[] res, double[] scale, double[] jy,
                      double[] jx, Workspace ws) {
-        if (ws.registers.length < p.registers()) {
+        if (ws.owner != this) {
             throw new IllegalArgumentException("workspace belongs to another evaluator; use this evaluator's "
                     + "newWorkspace()");
         }
+        double[][] r = ws.registers(p.registers());
         for (int s0 = 0; s0 < batch; s0 += BLOCK) {
-            block(p, x, y, s0, Math.min(BLOCK, batch - s0), res, scale, jy, jx, ws.registers, ws.scratch);
+            block(p, x, y, s0, Math.min(BLOCK, batch - s0), res, scale, jy, jx, r, ws.scratch);
         }
     }
 
@@ -580,7 +665,9 @@ public final class LawEvaluator {
                         }
                     }
                     for (int j = 0; j < m; j++) {
-                        d[j] += c[j];
+                        double sj = d[j];
+                        // as in Kernels.neumaier: an infinite sum keeps its plain value
+                        d[j] = Double.isFinite(sj) ? sj + c[j] : sj;
                     }
                     pc += 3 + n;
                     break;

@@ -10,6 +10,9 @@ final class Names {
      *         characters, a candidate with one letter more; for longer names, the candidate with the smallest edit
      *         distance if that is at most a third of the name's length (at least 1, at most 3); otherwise null
      */
+    /** Names longer than this get suggestions only for a difference in case (edit distance would cost too much). */
+    private static final int MAX_SUGGEST_LENGTH = 64;
+
     static String nearest(String name, Iterable<String> candidates) {
         for (String c : candidates) {
             if (c.equalsIgnoreCase(name) && !c.equals(name)) {
@@ -20,17 +23,21 @@ final class Names {
             // one- and two-letter names are all near each other, so only a dropped letter counts ('ot' for 'out')
             String best = null;
             for (String c : candidates) {
-                if (c.length() == name.length() + 1 && distance(name, c) == 1 && (best == null || c.compareTo(best) < 0)) {
+                if (c.length() == name.length() + 1 && distance(name, c) == 1
+                        && (best == null || c.compareTo(best) < 0)) {
                     best = c;
                 }
             }
             return best;
         }
+        if (name.length() > MAX_SUGGEST_LENGTH) {
+            return null;
+        }
         int limit = Math.max(1, Math.min(3, name.length() / 3));
         String best = null;
         int bestDistance = Integer.MAX_VALUE;
         for (String c : candidates) {
-            if (Math.abs(c.length() - name.length()) > limit) {
+            if (Math.abs(c.length() - name.length()) > limit || c.length() > MAX_SUGGEST_LENGTH) {
                 continue;
             }
             int d = distance(name, c);

@@ -42,6 +42,11 @@ final class TermPool {
         return nodes.size();
     }
 
+    /** @return the node with id {@code id} */
+    Term node(int id) {
+        return nodes.get(id);
+    }
+
     int variableCount() {
         return variableNames.length;
     }
@@ -219,20 +224,36 @@ final class TermPool {
 
     // ---- analysis --------------------------------------------------------------------------------------------
 
-    /** @return the nodes reachable from {@code root}, in ascending id order (children before parents) */
-    Term[] reachable(Term root) {
-        boolean[] seen = new boolean[nodes.size()];
+    private int[] marks = new int[1024];
+    private int stamp;
+
+    /**
+     * @return the nodes reachable from {@code root}, in ascending id order (children before parents); the cost is
+     *         proportional to the number of reachable nodes, not to the size of the pool
+     */
+    synchronized Term[] reachable(Term root) {
+        if (marks.length < nodes.size()) {
+            marks = Arrays.copyOf(marks, Math.max(nodes.size(), marks.length * 2));
+        }
+        if (++stamp == Integer.MAX_VALUE) {
+            Arrays.fill(marks, 0);
+            stamp = 1;
+        }
         int[] stack = new int[16];
+        int[] found = new int[16];
         int top = 0;
-        stack[top++] = root.id;
-        seen[root.id] = true;
         int count = 0;
+        stack[top++] = root.id;
+        marks[root.id] = stamp;
         while (top > 0) {
-            Term t = nodes.get(stack[--top]);
-            count++;
-            for (Term a : t.args) {
-                if (!seen[a.id]) {
-                    seen[a.id] = true;
+            int id = stack[--top];
+            if (count == found.length) {
+                found = Arrays.copyOf(found, count * 2);
+            }
+            found[count++] = id;
+            for (Term a : nodes.get(id).args) {
+                if (marks[a.id] != stamp) {
+                    marks[a.id] = stamp;
                     if (top == stack.length) {
                         stack = Arrays.copyOf(stack, top * 2);
                     }
@@ -240,12 +261,10 @@ final class TermPool {
                 }
             }
         }
+        Arrays.sort(found, 0, count);
         Term[] out = new Term[count];
-        int k = 0;
-        for (int i = 0; i <= root.id; i++) {
-            if (seen[i]) {
-                out[k++] = nodes.get(i);
-            }
+        for (int k = 0; k < count; k++) {
+            out[k] = nodes.get(found[k]);
         }
         return out;
     }

@@ -31,8 +31,9 @@ import java.util.Set;
  * {@link dev.lawful.algebra.ExpandedLaws#roundingDepth(int)}); for an element balance d_i is 1, so the bound is
  * 4 double ulps of the magnitude of its terms. The bound is checked on every sample: a sample that misses it counts
  * as not converged, never as a silent success. With the float entry points the outputs are rounded to float
- * after enforcement in double, which adds at most ½·Σ_j |∂C_i/∂y_c,j|·ulp_f32(y_c,j) ≤ 2⁻²⁴·s_i: each law holds
- * to about one float ulp of the magnitude of its terms.
+ * after enforcement in double, which adds at most ½·Σ_j |∂C_i/∂y_c,j|·ulp_f32(y_c,j) (plus the double bound):
+ * for a law linear in its completed outputs that is at most 2⁻²⁴·s_i, about one float ulp of the magnitude of
+ * its terms; a term y_c^k contributes up to k times as much.
  *
  * <p><b>Gradients</b> (identical for all tiers, from the implicit function theorem, never by unrolling Newton):
  * with upstream ḡ on the outputs, solve Aᵀλ = ḡ_c at the solution, then ḡ_z = ḡ_f − (∂C/∂z)ᵀλ and
@@ -83,12 +84,16 @@ public final class Completion {
     private final int[] entryRole;
     private final int[] inEntryLaw;
     private final int[] inEntryColumn;
-    // constant-affine fold y_c = M z + N x + k, and A⁻¹ for the refinement step
+    // constant-affine fold y_c = M z + N x + k
     private final double[] foldM;
     private final double[] foldN;
     private final double[] foldK;
-    private final double[] inverseA;
-    // affine tier with a constant A: its factors, once
+    /** The solve order: triangular levels first, then the coupled block. */
+    private final Stages stages;
+    /** Per stage: factors of its block when the block is constant (constant-affine, or affine with constant A). */
+    private final double[][] stageLu;
+    private final int[][] stagePivot;
+    /** Factors of the whole block A when it is constant, for the gradients. */
     private final double[] constantLu;
     private final int[] constantPivot;
     // Newton starting values
@@ -118,6 +123,7 @@ public final class Completion {
         private double[] step;
         private double[] stepLength;
         private double[] norm;
+        private double[] referenceScale;
         private int[] iterations;
         private byte[] status;
         private double[] guesses;
@@ -153,6 +159,7 @@ public final class Completion {
             step = new double[batch * c.n];
             stepLength = new double[batch];
             norm = new double[batch];
+            referenceScale = new double[batch * c.n];
             iterations = new int[batch];
             status = new byte[batch];
             guesses = c.guessEvaluator == null ? null : new double[batch * c.guessEvaluator.lawCount()];
@@ -283,6 +290,7 @@ public final class Completion {
         Declaration about = laws.completion().orElse(null);
         if (b.completedNames != null) {
             chosen = indices(b.completedNames, "completed output");
+            about = null;
         } else if (!b.automatic && laws.completion().isPresent()) {
             chosen = laws.completedOutputs();
         } else {
@@ -336,7 +344,7 @@ public final class Completion {
                     + (auto == null ? "" : "; a well-conditioned choice is: complete " + auto));
         }
         if (condition > OutputChoice.WARN_CONDITION) {
-            notes.add(String.format("the completed outputs are ill-conditioned (condition number %.3g > %.0e):"
+            notes.add(String.format(java.util.Locale.ROOT, "the completed outputs are ill-conditioned (condition number %.3g > %.0e):"
                     + " errors of the free outputs are amplified; consider the automatic choice", condition,
                     OutputChoice.WARN_CONDITION));
         }
@@ -403,35 +411,49 @@ public final class Completion {
             notes.add("nonlinear laws: Newton starts " + String.join(", ", missing) + " at 1 (in the declared unit);"
                     + " add a 'guess' statement to pick the root and speed convergence");
         }
-        // fold what is constant
+        // the solve order, and the factors of every block that is constant
+        this.stages = Stages.of(expanded, role, entryLaw, entryRole);
+        boolean constantBlock = tier == Tier.CONSTANT_AFFINE || (tier == Tier.AFFINE && blockIsConstant());
+        this.stageLu = new double[stages.stages.size()][];
+        this.stagePivot = new int[stages.stages.size()][];
+        if (constantBlock) {
+            for (int g = 0; g < stages.stages.size(); g++) {
+                Stages.Stage st = stages.stages.get(g);
+                int m = st.size();
+                stageLu[g] = new double[m * m];
+                stagePivot[g] = new int[m];
+                for (int j = 0; j < m; j++) {
+                    for (int k = 0; k < m; k++) {
+                        stageLu[g][j * m + k] = choice.jacobian[st.laws()[j] * nOut + completed[st.vars()[k]]];
+                    }
+                }
+                if (!DenseLu.factor(stageLu[g], m, stagePivot[g])) {
+                    throw new AssertionError("a block with finite condition number did not factor");
+                }
+            }
+            this.constantLu = new double[n * n];
+            for (int i = 0; i < n; i++) {
+                for (int k = 0; k < n; k++) {
+                    constantLu[i * n + k] = choice.jacobian[i * nOut + completed[k]];
+                }
+            }
+            this.constantPivot = new int[n];
+            if (!DenseLu.factor(constantLu, n, constantPivot)) {
+                throw new AssertionError("a block with finite condition number did not factor");
+            }
+        } else {
+            this.constantLu = null;
+            this.constantPivot = null;
+        }
         if (tier == Tier.CONSTANT_AFFINE) {
             double[][] fold = foldConstantAffine(choice);
             this.foldM = fold[0];
             this.foldN = fold[1];
             this.foldK = fold[2];
-            this.inverseA = fold[3];
-            this.constantLu = null;
-            this.constantPivot = null;
         } else {
             this.foldM = null;
             this.foldN = null;
             this.foldK = null;
-            this.inverseA = null;
-            if (tier == Tier.AFFINE && blockIsConstant()) {
-                this.constantLu = new double[n * n];
-                for (int i = 0; i < n; i++) {
-                    for (int k = 0; k < n; k++) {
-                        constantLu[i * n + k] = choice.jacobian[i * nOut + completed[k]];
-                    }
-                }
-                this.constantPivot = new int[n];
-                if (!DenseLu.factor(constantLu, n, constantPivot)) {
-                    throw new AssertionError("a block with finite condition number did not factor");
-                }
-            } else {
-                this.constantLu = null;
-                this.constantPivot = null;
-            }
         }
         this.warnings = List.copyOf(notes);
     }
@@ -487,61 +509,73 @@ public final class Completion {
         return true;
     }
 
-    /** @return {M, N, k, A⁻¹} with y_c = M z + N x + k, from C = A y_c + A_f z + A_x x + c0 */
+    /**
+     * @return {M, N, k} with y_c = M z + N x + k, from C = A y_c + A_f z + A_x x + c0, solved stage by stage in the
+     *         triangular order so that coefficients that are structurally zero come out exactly zero
+     */
     private double[][] foldConstantAffine(OutputChoice choice) {
-        double[] a = new double[n * n];
-        for (int i = 0; i < n; i++) {
-            for (int k = 0; k < n; k++) {
-                a[i * n + k] = choice.jacobian[i * nOut + completed[k]];
-            }
-        }
-        int[] piv = new int[n];
-        double[] lu = a.clone();
-        if (!DenseLu.factor(lu, n, piv)) {
-            throw new AssertionError("a block with finite condition number did not factor");
-        }
-        double[] inverse = new double[n * n];
-        double[] col = new double[n];
-        for (int j = 0; j < n; j++) {
-            Arrays.fill(col, 0);
-            col[j] = 1;
-            DenseLu.solve(lu, n, piv, col, 0);
-            for (int i = 0; i < n; i++) {
-                inverse[i * n + j] = col[i];
-            }
-        }
-        double[] af = new double[n * nFree];
-        double[] ax = new double[n * nIn];
-        for (int i = 0; i < n; i++) {
-            for (int f = 0; f < nFree; f++) {
-                af[i * nFree + f] = choice.jacobian[i * nOut + free[f]];
-            }
-        }
         double[] jx = new double[evaluator.inputNonzeros()];
         double[] c0 = new double[n];
         evaluator.evaluate(new double[nIn], new double[nOut], 1, c0, null, null, jx);
+        double[] ax = new double[n * nIn];
         for (int e = 0; e < jx.length; e++) {
             ax[inEntryLaw[e] * nIn + inEntryColumn[e]] = jx[e];
         }
         double[] m = new double[n * nFree];
         double[] nn = new double[n * nIn];
         double[] k = new double[n];
-        for (int r = 0; r < n; r++) {
-            for (int i = 0; i < n; i++) {
-                double inv = inverse[r * n + i];
-                if (inv == 0) {
-                    continue;
-                }
+        boolean[] known = new boolean[n];
+        int width = nFree + nIn + 1;
+        for (int g = 0; g < stages.stages.size(); g++) {
+            Stages.Stage st = stages.stages.get(g);
+            int size = st.size();
+            // right-hand sides: −(A_f, A_x, c0) of the stage's laws minus what earlier stages contribute
+            double[] rhs = new double[size * width];
+            for (int j = 0; j < size; j++) {
+                int law = st.laws()[j];
+                double[] row = new double[width];
                 for (int f = 0; f < nFree; f++) {
-                    m[r * nFree + f] -= inv * af[i * nFree + f];
+                    row[f] = choice.jacobian[law * nOut + free[f]];
                 }
                 for (int x = 0; x < nIn; x++) {
-                    nn[r * nIn + x] -= inv * ax[i * nIn + x];
+                    row[nFree + x] = ax[law * nIn + x];
                 }
-                k[r] -= inv * c0[i];
+                row[width - 1] = c0[law];
+                for (int q = 0; q < n; q++) {
+                    double a = choice.jacobian[law * nOut + completed[q]];
+                    if (a == 0 || !known[q]) {
+                        continue;
+                    }
+                    for (int f = 0; f < nFree; f++) {
+                        row[f] += a * m[q * nFree + f];
+                    }
+                    for (int x = 0; x < nIn; x++) {
+                        row[nFree + x] += a * nn[q * nIn + x];
+                    }
+                    row[width - 1] += a * k[q];
+                }
+                for (int c = 0; c < width; c++) {
+                    rhs[c * size + j] = -row[c];
+                }
+            }
+            for (int c = 0; c < width; c++) {
+                DenseLu.solve(stageLu[g], size, stagePivot[g], rhs, c * size);
+            }
+            for (int j = 0; j < size; j++) {
+                int q = st.vars()[j];
+                for (int f = 0; f < nFree; f++) {
+                    m[q * nFree + f] = rhs[f * size + j];
+                }
+                for (int x = 0; x < nIn; x++) {
+                    nn[q * nIn + x] = rhs[(nFree + x) * size + j];
+                }
+                k[q] = rhs[(width - 1) * size + j];
+            }
+            for (int j = 0; j < size; j++) {
+                known[st.vars()[j]] = true;
             }
         }
-        return new double[][] {m, nn, k, inverse};
+        return new double[][] {m, nn, k};
     }
 
     // ---- description -----------------------------------------------------------------------------------------
@@ -647,6 +681,9 @@ public final class Completion {
         if (status != null) {
             need(status, batch);
         }
+        if (batch == 0) {
+            return;
+        }
         ws.ensure(this, batch);
         double[] full = ws.y;
         for (int s = 0; s < batch; s++) {
@@ -660,7 +697,7 @@ public final class Completion {
         switch (tier) {
             case CONSTANT_AFFINE:
                 forwardConstantAffine(x, z, batch, full);
-                refine(x, batch, full, st, ws, true);
+                refineAll(x, batch, full, st, ws);
                 break;
             case AFFINE:
                 forwardAffine(x, batch, full, st, ws);
@@ -682,6 +719,9 @@ public final class Completion {
         need("x", x, (long) batch * nIn);
         need("z", z, (long) batch * nFree);
         need("y", y, (long) batch * nOut);
+        if (batch == 0) {
+            return;
+        }
         ws.ensure(this, batch);
         widen(x, ws.x, batch * nIn);
         widen(z, ws.z, batch * nFree);
@@ -707,52 +747,91 @@ public final class Completion {
     }
 
     private void forwardAffine(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
-        // C is affine in y_c: C(y_c) = C(0) + A y_c, so y_c = −A⁻¹ C(0); then one refinement with the same A
-        for (int s = 0; s < batch; s++) {
-            for (int k = 0; k < n; k++) {
-                full[s * nOut + completed[k]] = 0;
+        // C is affine in y_c: per stage, C(y_stage = 0) + B y_stage = 0, so y_stage = −B⁻¹ C(0); then one
+        // refinement with the same B
+        for (int g = 0; g < stages.stages.size(); g++) {
+            Stages.Stage stage = stages.stages.get(g);
+            for (int s = 0; s < batch; s++) {
+                for (int q : stage.vars()) {
+                    full[s * nOut + completed[q]] = 0;
+                }
             }
-        }
-        if (constantLu != null) {
-            evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
-        } else {
-            evaluator.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, null, ws.evaluation);
-        }
-        for (int s = 0; s < batch; s++) {
-            if (st[s] != SampleStatus.OK) {
-                continue;
+            if (stageLu[g] != null) {
+                evaluator.residuals(x, full, batch, ws.residual, null, ws.evaluation);
+            } else {
+                evaluator.evaluate(x, full, batch, ws.residual, null, ws.jy, null, ws.evaluation);
             }
-            if (!factorSample(s, ws)) {
-                st[s] = SampleStatus.SINGULAR;
-                continue;
+            for (int s = 0; s < batch; s++) {
+                if (st[s] != SampleStatus.OK) {
+                    continue;
+                }
+                if (!factorSample(s, g, ws)) {
+                    st[s] = SampleStatus.SINGULAR;
+                    continue;
+                }
+                applyStep(s, g, 1.0, full, ws);
             }
-            applyStep(s, 1.0, full, ws);
+            refineStage(x, batch, full, st, ws, g);
         }
-        refine(x, batch, full, st, ws, false);
+        verify(x, batch, full, st, ws);
     }
 
-    /** y_c ← y_c − t·A⁻¹ r for sample s, with A's factors for that sample already in place. */
-    private void applyStep(int s, double t, double[] full, Workspace ws) {
+    /** Refines every stage in order: where its laws are above rounding level, one correction with its block. */
+    private void refineAll(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
+        for (int g = 0; g < stages.stages.size(); g++) {
+            refineStage(x, batch, full, st, ws, g);
+        }
+        verify(x, batch, full, st, ws);
+    }
+
+    private void refineStage(double[] x, int batch, double[] full, byte[] st, Workspace ws, int g) {
+        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
+        Stages.Stage stage = stages.stages.get(g);
+        for (int s = 0; s < batch; s++) {
+            if (st[s] == SampleStatus.OK && !converged(s, ws, stage.laws())) {
+                // the block's factors from the solve are still in place (or constant)
+                applyStep(s, g, 1.0, full, ws);
+            }
+        }
+    }
+
+    /** y_stage ← y_stage − t·B⁻¹ r_stage for sample s, with the stage block's factors in place. */
+    private void applyStep(int s, int g, double t, double[] full, Workspace ws) {
+        Stages.Stage stage = stages.stages.get(g);
+        int m = stage.size();
         double[] v = ws.vector;
-        for (int i = 0; i < n; i++) {
-            v[i] = -ws.residual[s * n + i];
+        for (int j = 0; j < m; j++) {
+            v[j] = -ws.residual[s * n + stage.laws()[j]];
         }
-        solve(s, v, ws);
-        for (int k = 0; k < n; k++) {
-            full[s * nOut + completed[k]] += t * v[k];
-        }
-    }
-
-    private void solve(int s, double[] v, Workspace ws) {
-        if (constantLu != null) {
-            DenseLu.solve(constantLu, n, constantPivot, v, 0);
+        if (stageLu[g] != null) {
+            DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
         } else {
-            DenseLu.solve(ws.lu, n, ws.pivots, v, 0, s * n * n, s * n);
+            DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n, s * n);
+        }
+        for (int j = 0; j < m; j++) {
+            full[s * nOut + completed[stage.vars()[j]]] += t * v[j];
         }
     }
 
-    /** Builds A = ∂C/∂y_c of sample s from the evaluator's entries and factors it into the workspace. */
-    private boolean factorSample(int s, Workspace ws) {
+    /** Builds the stage block of sample s from the evaluator's dC/dy entries and factors it into the workspace. */
+    private boolean factorSample(int s, int g, Workspace ws) {
+        if (stageLu[g] != null) {
+            return true;
+        }
+        Stages.Stage stage = stages.stages.get(g);
+        int m = stage.size();
+        int nnz = evaluator.outputNonzeros();
+        int base = s * n * n;
+        Arrays.fill(ws.lu, base, base + m * m, 0.0);
+        int[] entries = stage.entries();
+        for (int k = 0; k < entries.length; k++) {
+            ws.lu[base + stage.rows()[k] * m + stage.cols()[k]] = ws.jy[s * nnz + entries[k]];
+        }
+        return DenseLu.factor(ws.lu, m, ws.pivots, base, s * n);
+    }
+
+    /** Builds the whole block A = ∂C/∂y_c of sample s (for gradients) and factors it into the workspace. */
+    private boolean factorWhole(int s, Workspace ws) {
         if (constantLu != null) {
             return true;
         }
@@ -768,43 +847,21 @@ public final class Completion {
         return DenseLu.factor(ws.lu, n, ws.pivots, base, s * n);
     }
 
-    /**
-     * Evaluates the residuals at the current outputs and, where a sample is above rounding level, applies one
-     * Newton correction with that sample's A (for the constant-affine tier, the folded A⁻¹).
-     */
-    private void refine(double[] x, int batch, double[] full, byte[] st, Workspace ws, boolean constantAffine) {
-        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
-        for (int s = 0; s < batch; s++) {
-            if (st[s] != SampleStatus.OK || converged(s, ws)) {
-                continue;
-            }
-            if (constantAffine) {
-                for (int r = 0; r < n; r++) {
-                    double d = 0;
-                    for (int i = 0; i < n; i++) {
-                        d += inverseA[r * n + i] * ws.residual[s * n + i];
-                    }
-                    full[s * nOut + completed[r]] -= d;
-                }
-            } else {
-                applyStep(s, 1.0, full, ws);
-            }
-        }
-        verify(x, batch, full, st, ws);
-    }
-
     /** Final check of the documented bound: a sample that misses it is not converged. */
     private void verify(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
         evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
         for (int s = 0; s < batch; s++) {
-            if (st[s] == SampleStatus.OK && !converged(s, ws)) {
+            if (st[s] == SampleStatus.OK && !converged(s, ws, null)) {
                 st[s] = SampleStatus.NOT_CONVERGED;
             }
         }
     }
 
-    private boolean converged(int s, Workspace ws) {
-        for (int i = 0; i < n; i++) {
+    /** @return whether the given laws (all when null) of sample s are within the documented bound */
+    private boolean converged(int s, Workspace ws, int[] subset) {
+        int count = subset == null ? n : subset.length;
+        for (int j = 0; j < count; j++) {
+            int i = subset == null ? j : subset[j];
             double r = ws.residual[s * n + i];
             if (!(Math.abs(r) <= boundFactor[i] * EPS * ws.scale[s * n + i])) {
                 return false;
@@ -830,6 +887,20 @@ public final class Completion {
                 }
             }
         }
+        for (int g = 0; g < stages.stages.size(); g++) {
+            newtonStage(x, batch, full, st, ws, g);
+        }
+        verify(x, batch, full, st, ws);
+    }
+
+    /**
+     * Damped Newton on one stage for every sample at once: each batch evaluation serves all samples still
+     * iterating; a step that does not reduce the scaled residual norm is halved (down to 1/1024).
+     */
+    private void newtonStage(double[] x, int batch, double[] full, byte[] st, Workspace ws, int g) {
+        Stages.Stage stage = stages.stages.get(g);
+        int[] stageLaws = stage.laws();
+        int m = stage.size();
         double[] norm = ws.norm;
         double[] length = ws.stepLength;
         Arrays.fill(norm, 0, batch, Double.POSITIVE_INFINITY);
@@ -844,16 +915,18 @@ public final class Completion {
         }
         for (int iteration = 0; iteration <= 4 * maxIterations && remaining > 0; iteration++) {
             evaluator.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, null, ws.evaluation);
+            remaining = 0;
             for (int s = 0; s < batch; s++) {
                 if (st[s] != SampleStatus.NOT_CONVERGED || length[s] < 0) {
                     continue;
                 }
-                if (converged(s, ws)) {
+                if (converged(s, ws, stageLaws)) {
                     st[s] = SampleStatus.OK;
-                    remaining--;
                     continue;
                 }
-                double nrm = scaledNorm(s, ws);
+                // judged in the scales of the last accepted point: the scale moves with the iterate, and a norm
+                // divided by the current scale can stay at 1 while the residual itself falls
+                double nrm = scaledNorm(s, ws, stageLaws, true);
                 double t = length[s];
                 if (t > 0 && !(nrm < (1 - 1e-4 * t) * norm[s])) {
                     // backtrack: halve the step from the previous point
@@ -863,46 +936,58 @@ public final class Completion {
                     }
                     t /= 2;
                     length[s] = t;
-                    for (int k = 0; k < n; k++) {
-                        full[s * nOut + completed[k]] = ws.previous[s * n + k] + t * ws.step[s * n + k];
+                    for (int j = 0; j < m; j++) {
+                        int o = completed[stage.vars()[j]];
+                        full[s * nOut + o] = ws.previous[s * n + j] + t * ws.step[s * n + j];
                     }
+                    remaining++;
                     continue;
                 }
                 if (ws.iterations[s] >= maxIterations) {
                     length[s] = -1;
                     continue;
                 }
-                norm[s] = nrm;
-                if (!factorSample(s, ws)) {
-                    st[s] = SampleStatus.SINGULAR;
-                    remaining--;
+                for (int i : stageLaws) {
+                    ws.referenceScale[s * n + i] = ws.scale[s * n + i] > 0 ? ws.scale[s * n + i] : 1;
+                }
+                norm[s] = scaledNorm(s, ws, stageLaws, true);
+                if (!factorSample(s, g, ws)) {
+                    // singular where Newton starts: the start is at fault; later, Newton has broken down
+                    st[s] = ws.iterations[s] == 0 ? SampleStatus.SINGULAR : SampleStatus.NOT_CONVERGED;
                     continue;
                 }
                 double[] v = ws.vector;
-                for (int i = 0; i < n; i++) {
-                    v[i] = -ws.residual[s * n + i];
+                for (int j = 0; j < m; j++) {
+                    v[j] = -ws.residual[s * n + stageLaws[j]];
                 }
-                solve(s, v, ws);
-                for (int k = 0; k < n; k++) {
-                    ws.previous[s * n + k] = full[s * nOut + completed[k]];
-                    ws.step[s * n + k] = v[k];
-                    full[s * nOut + completed[k]] += v[k];
+                if (stageLu[g] != null) {
+                    DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
+                } else {
+                    DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n, s * n);
+                }
+                for (int j = 0; j < m; j++) {
+                    int o = completed[stage.vars()[j]];
+                    ws.previous[s * n + j] = full[s * nOut + o];
+                    ws.step[s * n + j] = v[j];
+                    full[s * nOut + o] += v[j];
                 }
                 length[s] = 1;
                 ws.iterations[s]++;
+                remaining++;
             }
         }
     }
 
-    private double scaledNorm(int s, Workspace ws) {
+    private double scaledNorm(int s, Workspace ws, int[] subset, boolean reference) {
         double sum = 0;
-        for (int i = 0; i < n; i++) {
-            double sc = ws.scale[s * n + i];
+        for (int i : subset) {
+            double sc = reference ? ws.referenceScale[s * n + i] : ws.scale[s * n + i];
             double r = ws.residual[s * n + i] / (sc > 0 ? sc : 1);
             sum += r * r;
         }
         return Math.sqrt(sum);
     }
+
 
     private void markNonFinite(double[] x, double[] z, int batch, byte[] st) {
         for (int s = 0; s < batch; s++) {
@@ -958,7 +1043,9 @@ public final class Completion {
                 break;
             case SampleStatus.SINGULAR:
                 what = "the laws " + laws + " are singular in the completed outputs "
-                        + String.join(", ", completedNames()) + " at this sample (their Jacobian block has no inverse)";
+                        + String.join(", ", completedNames()) + " at this sample (their Jacobian block has no inverse)"
+                        + (tier == Tier.NONLINEAR ? "; if this happens where Newton starts, give a 'guess' for the"
+                        + " completed outputs away from that point" : "");
                 break;
             default:
                 what = tier == Tier.NONLINEAR
@@ -996,6 +1083,9 @@ public final class Completion {
         if (gx != null) {
             need("gx", gx, (long) batch * nIn);
         }
+        if (batch == 0) {
+            return;
+        }
         ws.ensure(this, batch);
         double[] full = ws.y;
         double[] g = ws.g;
@@ -1008,6 +1098,10 @@ public final class Completion {
         }
         if (tier == Tier.CONSTANT_AFFINE) {
             for (int s = 0; s < batch; s++) {
+                if (!finiteRow(full, g, s)) {
+                    nanGradients(s, gz, gx);
+                    continue;
+                }
                 for (int f = 0; f < nFree; f++) {
                     double v = g[s * nOut + free[f]];
                     for (int r = 0; r < n; r++) {
@@ -1032,7 +1126,12 @@ public final class Completion {
         int nnzX = evaluator.inputNonzeros();
         double[] lambda = ws.vector;
         for (int s = 0; s < batch; s++) {
-            if (!factorSample(s, ws)) {
+            if (!finiteRow(full, g, s)) {
+                // a masked sample (NaN outputs) has no gradient either
+                nanGradients(s, gz, gx);
+                continue;
+            }
+            if (!factorWhole(s, ws)) {
                 if (policy == OnBadSample.THROW) {
                     throw failure(s, SampleStatus.SINGULAR);
                 }
@@ -1073,6 +1172,9 @@ public final class Completion {
         need("x", x, (long) batch * nIn);
         need("y", y, (long) batch * nOut);
         need("gy", gy, (long) batch * nOut);
+        if (batch == 0) {
+            return;
+        }
         ws.ensure(this, batch);
         double[] xd = ws.x;
         widen(x, xd, batch * nIn);
@@ -1131,6 +1233,22 @@ public final class Completion {
     }
 
     // ---- helpers ---------------------------------------------------------------------------------------------
+
+    private boolean finiteRow(double[] full, double[] g, int s) {
+        for (int o = 0; o < nOut; o++) {
+            if (!Double.isFinite(full[s * nOut + o]) || !Double.isFinite(g[s * nOut + o])) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    private void nanGradients(int s, double[] gz, double[] gx) {
+        Arrays.fill(gz, s * nFree, (s + 1) * nFree, Double.NaN);
+        if (gx != null) {
+            Arrays.fill(gx, s * nIn, (s + 1) * nIn, Double.NaN);
+        }
+    }
 
     /** @return the declared output index of column {@code c} in this completion's layout */
     private int outputAt(int c) {

@@ -36,7 +36,22 @@ public record LawResiduals(String name, String law, Unit unit, int samples, int 
                            int overTolerance, int worstSample, ResidualStats absolute, ResidualStats relative,
                            List<Integer> histogram) {
 
-    /** Copies the histogram, so a value never changes once made. */
+    /**
+     * Copies the histogram, so a value never changes once made.
+     *
+     * @param name          the scalar law's name
+     * @param law           the declared law's name
+     * @param unit          the unit of the absolute statistics
+     * @param samples       samples in the batch
+     * @param notANumber    samples with a NaN residual
+     * @param infinite      samples with an infinite residual
+     * @param overTolerance samples over the tolerance
+     * @param worstSample   the sample with the largest relative residual, or -1
+     * @param absolute      statistics of |lhs - rhs| in {@code unit}
+     * @param relative      statistics of the relative residual
+     * @param histogram     {@link ResidualHistogram#BINS} counts
+     * @throws IllegalArgumentException when the histogram does not have {@link ResidualHistogram#BINS} bins
+     */
     public LawResiduals {
         histogram = List.copyOf(histogram);
         if (histogram.size() != ResidualHistogram.BINS) {

@@ -119,8 +119,9 @@ final class OutputChoice {
      */
     int[] automatic(int[] allowed) {
         if (allowed.length < n) {
-            throw laws.problem(null, "the laws give " + n + " scalar equations but only " + allowed.length
-                    + " outputs may be completed; allow at least " + n + " outputs");
+            throw laws.problem(null, "the laws give " + n + " scalar equation" + (n == 1 ? "" : "s") + " but only "
+                    + allowed.length + " output" + (allowed.length == 1 ? "" : "s") + " may be completed; allow at least "
+                    + n + " output" + (n == 1 ? "" : "s"));
         }
         DMatrixRMaj a = new DMatrixRMaj(n, allowed.length);
         for (int i = 0; i < n; i++) {

@@ -10,9 +10,9 @@ import java.util.function.IntFunction;
  * The aligned text form of a {@link ResidualReport}:
  *
  * <pre>
- *                   |r| in the law's unit           |r| / scale
- * law       unit         max      mean       p99       max      mean       p99  over tol  non-finite
- * carbon    mol/s   2.22e-16  4.44e-17  2.22e-16  1.06e-16  2.11e-17  1.06e-16         0           0
+ *                 |r| in the law's unit         |r| / scale
+ * law       unit        max      mean       p99       max      mean       p99  over tol  non-finite
+ * carbon    mol/s  2.22e-16  4.44e-17  2.22e-16  1.06e-16  2.11e-17  1.06e-16         0           0
  *
  * relative residual, samples per bin (bins empty for every law left out)
  * law          0  &lt;=1e-16  &lt;=1e-15
@@ -26,6 +26,8 @@ import java.util.function.IntFunction;
  */
 final class ResidualTable {
     private static final String GAP = "  ";
+    /** Characters of a number with three significant digits and a two-digit exponent: {@code 2.22e-16}. */
+    private static final int NUMBER_WIDTH = 8;
 
     private ResidualTable() {
     }
@@ -55,6 +57,10 @@ final class ResidualTable {
                 Integer.toString(l.nonFinite())});
         }
         int[] width = widths(rows);
+        // every statistic gets the width of a full number (2.22e-16), so the group headings fit above their columns
+        for (int c = 2; c < 8; c++) {
+            width[c] = Math.max(width[c], NUMBER_WIDTH);
+        }
         // the group headings start above the first column of their group
         int absoluteAt = width[0] + GAP.length() + width[1] + GAP.length();
         int relativeAt = absoluteAt + width[2] + width[3] + width[4] + 3 * GAP.length();

@@ -28,16 +28,27 @@ import java.math.RoundingMode;
  *       {@code -Infinity} (the spellings {@code Double.parseDouble} reads back).</li>
  * </ul>
  *
- * <p><b>How.</b> The exact binary value is rounded down and up to p significant digits ({@link BigDecimal}); a
- * p-digit decimal that reads back exists exactly when one of those two does, and if one exists for p it exists
- * for every larger p, so the shortest length is found by bisection. The length of Java's own
- * {@code Double.toString} is the first guess: when one digit fewer does not read back, that length is already the
- * shortest and only one more check is needed. Costs a few microseconds per value; meant for writing files, not for
- * hot loops.
+ * <p><b>How.</b> The exact binary value ({@link BigDecimal}) is rounded down and up to p significant digits; a
+ * decimal of at most p digits that reads back exists exactly when one of those two does, and if one exists for p
+ * it exists for every larger p, so the shortest length is found by bisection. The length of Java's own
+ * {@code Double.toString} is the first guess: when it has at most 15 digits it is already the shortest (see
+ * {@code FAST_DIGITS}); when one digit fewer does not read back, that length is the shortest and only one more check
+ * is needed. The exact value is truncated once to 18 digits and the candidates
+ * are then found with {@code long} arithmetic. Costs a few microseconds per value; meant for writing files, not
+ * for hot loops.
  */
 public final class ShortestDecimal {
     /** Every double is identified by 17 significant digits. */
     private static final int MAX_DIGITS = 17;
+    /**
+     * Java's text is taken as it is when it has at most this many digits and the value is normal: two different
+     * decimals of at most 15 significant digits are at least 10^-15 of their magnitude apart, more than the width
+     * of a normal double's rounding interval (one ulp, at most 2^-52 ≈ 2.2e-16 of the value), so such a text is
+     * the only decimal of at most 15 digits that reads back, hence the shortest and the nearest of its length.
+     * (A subnormal's interval is far wider relative to its value: Java writes 2^-1074 as 4.9E-324, but 5e-324
+     * reads back too.)
+     */
+    private static final int FAST_DIGITS = 15;
 
     private ShortestDecimal() {
     }
@@ -83,63 +94,148 @@ public final class ShortestDecimal {
      * @return its shortest round-trip decimal, as specified in the class comment
      */
     static Decimal shortest(double a) {
-        BigDecimal exact = new BigDecimal(a);
-        int guess = significantDigits(Double.toString(a));
-        BigDecimal best;
-        if (guess <= 1) {
-            best = nearestThatReadsBack(exact, a, 1);
+        String java = Double.toString(a);
+        int guess = Math.min(MAX_DIGITS, significantDigits(java));
+        if (guess <= FAST_DIGITS && a >= Double.MIN_NORMAL) {
+            return fromJava(java);
+        }
+        Candidates c = new Candidates(a);
+        long best;
+        int bestDigits;
+        if (guess <= 1 || c.nearestThatReadsBack(guess - 1) < 0) {
+            // nothing shorter than Java's own length reads back (by monotonicity, nothing shorter at all)
+            bestDigits = guess;
+            best = c.nearestThatReadsBack(guess);
         } else {
-            BigDecimal fewer = nearestThatReadsBack(exact, a, guess - 1);
-            if (fewer == null) {
-                best = nearestThatReadsBack(exact, a, guess);
-            } else {
-                // bisect: no decimal of at most lo digits reads back, one of at most hi digits does
-                int lo = 0;
-                int hi = guess - 1;
-                best = fewer;
-                while (hi - lo > 1) {
-                    int mid = (lo + hi) >>> 1;
-                    BigDecimal c = nearestThatReadsBack(exact, a, mid);
-                    if (c == null) {
-                        lo = mid;
-                    } else {
-                        hi = mid;
-                        best = c;
-                    }
+            // bisect: no decimal of at most lo digits reads back, one of at most hi digits does
+            int lo = 0;
+            int hi = guess - 1;
+            best = c.nearestThatReadsBack(hi);
+            while (hi - lo > 1) {
+                int mid = (lo + hi) >>> 1;
+                long m = c.nearestThatReadsBack(mid);
+                if (m < 0) {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                    best = m;
                 }
             }
+            bestDigits = hi;
         }
-        if (best == null) {
+        if (best < 0) {
             // cannot happen: Double.toString round-trips, and 17 digits always suffice
-            best = nearestThatReadsBack(exact, a, MAX_DIGITS);
+            throw new AssertionError("no round-trip decimal of " + bestDigits + " digits for " + a);
         }
-        best = best.stripTrailingZeros();
-        String digits = best.unscaledValue().toString();
-        return new Decimal(digits, digits.length() - 1 - best.scale());
+        // best × 10^(e - 17); drop trailing zeros
+        int scale = c.exponent - (Candidates.WIDTH - 1);
+        while (best % 10 == 0) {
+            best /= 10;
+            scale++;
+        }
+        String digits = Long.toString(best);
+        return new Decimal(digits, scale + digits.length() - 1);
     }
 
     /**
-     * @return of the two decimals of at most {@code p} significant digits next to {@code exact} (rounded down and
-     *         up), the one that reads back to {@code a}, the nearer if both do (the even last digit on a tie), or
-     *         null when neither does
+     * The decimals next to one double, found from its exact value truncated once to {@value #WIDTH} significant
+     * digits, x = (t + δ) × 10^(e - 17) with t an integer of 18 digits and 0 ≤ δ &lt; 1. Every grid of p ≤ 17
+     * significant digits is coarser than that of t, so the p-digit decimals just below and above x follow from t
+     * with integer arithmetic; only telling which of the two is nearer may need the exact value, and only when
+     * the answer hangs on δ.
      */
-    private static BigDecimal nearestThatReadsBack(BigDecimal exact, double a, int p) {
-        BigDecimal down = exact.round(new MathContext(p, RoundingMode.FLOOR));
-        BigDecimal up = exact.round(new MathContext(p, RoundingMode.CEILING));
-        boolean downOk = readsBack(down, a);
-        boolean upOk = readsBack(up, a);
-        if (downOk && upOk) {
-            int c = exact.subtract(down).compareTo(up.subtract(exact));
-            if (c != 0) {
-                return c < 0 ? down : up;
+    private static final class Candidates {
+        static final int WIDTH = 18;
+        private static final long[] POW10 = new long[WIDTH + 1];
+
+        static {
+            POW10[0] = 1;
+            for (int i = 1; i <= WIDTH; i++) {
+                POW10[i] = POW10[i - 1] * 10;
             }
-            return down.unscaledValue().testBit(0) ? up : down;
         }
-        return downOk ? down : upOk ? up : null;
+
+        final double a;
+        final BigDecimal exact;
+        final BigDecimal truncated;
+        /** t: 18 digits. */
+        final long t;
+        /** Decimal exponent e of the first digit. */
+        final int exponent;
+        /** Whether δ = 0. */
+        final boolean onGrid;
+
+        Candidates(double a) {
+            this.a = a;
+            this.exact = new BigDecimal(a);
+            BigDecimal r = exact.round(new MathContext(WIDTH, RoundingMode.FLOOR));
+            this.truncated = r;
+            this.onGrid = r.compareTo(exact) == 0;
+            long u = r.unscaledValue().longValueExact();
+            int digits = r.precision();
+            this.t = u * POW10[WIDTH - digits];
+            this.exponent = digits - 1 - r.scale();
+        }
+
+        /**
+         * @return of the decimals of at most {@code p} significant digits just below and just above the double,
+         *         the one that reads back (the nearer if both do, the even last digit on a tie), as an integer
+         *         m with value m × 10^(e - 17); or -1 when neither reads back
+         */
+        long nearestThatReadsBack(int p) {
+            long q = POW10[WIDTH - p];
+            long down = t / q * q;
+            long up = onGrid && down == t ? down : down + q;
+            // written with p digits (trailing zeros of the 18-digit form dropped), which parses much faster
+            int shift = exponent - (WIDTH - 1) + (WIDTH - p);
+            boolean downOk = readsBack(down / q, shift);
+            boolean upOk = up != down && readsBack(up / q, shift);
+            if (downOk && upOk) {
+                // (x - down) - (up - x) = j + 2δ in units of the truncation's last place
+                long j = 2 * t - down - up;
+                int sign;
+                if (onGrid || j >= 0 || j <= -2) {
+                    sign = Long.signum(j) != 0 ? Long.signum(j) : (onGrid ? 0 : 1);
+                } else {
+                    // j = -1: the sign of 2δ - 1, from the exact value
+                    BigDecimal lastPlace = BigDecimal.ONE.scaleByPowerOfTen(exponent - (WIDTH - 1));
+                    sign = exact.subtract(truncated).multiply(BigDecimal.valueOf(2)).compareTo(lastPlace);
+                }
+                if (sign != 0) {
+                    return sign < 0 ? down : up;
+                }
+                return (down / q) % 2 == 0 ? down : up;
+            }
+            return downOk ? down : upOk ? up : -1;
+        }
+
+        /** @return whether m × 10^shift reads back to the double */
+        private boolean readsBack(long m, int shift) {
+            return Double.parseDouble(m + "e" + shift) == a;
+        }
     }
 
-    private static boolean readsBack(BigDecimal d, double a) {
-        return Double.parseDouble(d.toString()) == a;
+    /**
+     * @param javaText the text of {@link Double#toString(double)} for a finite positive double ({@code 123.45},
+     *                 {@code 0.0012}, {@code 1.0E-5}, {@code 9.999999999999999E22})
+     * @return its digits without leading or trailing zeros, and the decimal exponent of the first of them
+     */
+    static Decimal fromJava(String javaText) {
+        int e = javaText.indexOf('E');
+        String mantissa = e < 0 ? javaText : javaText.substring(0, e);
+        int exponent = e < 0 ? 0 : Integer.parseInt(javaText.substring(e + 1));
+        int point = mantissa.indexOf('.');
+        String all = point < 0 ? mantissa : mantissa.substring(0, point) + mantissa.substring(point + 1);
+        int intDigits = point < 0 ? mantissa.length() : point;
+        int first = 0;
+        while (first < all.length() - 1 && all.charAt(first) == '0') {
+            first++;
+        }
+        int last = all.length();
+        while (last > first + 1 && all.charAt(last - 1) == '0') {
+            last--;
+        }
+        return new Decimal(all.substring(first, last), exponent + intDigits - 1 - first);
     }
 
     /**

@@ -11,11 +11,17 @@ import java.util.List;
  *
  * <p>A valid file gives {@code file}, {@code valid: true}, {@code inputs}, {@code outputs}, {@code constants} (each
  * a list of {@code {name, length, unit}}), {@code definitions} ({@code {name, length, expression}}), {@code laws}
- * ({@code {name, unit, length, outputs}}), {@code completed} (output element names, empty without a
- * {@code complete} statement) and {@code warnings}. An invalid file gives {@code file}, {@code valid: false},
- * {@code errors} and {@code warnings}, each finding as {@code {line, column, message}}. Lengths count elements
- * (1 for a scalar; for a law, its scalar equations); units are the text as written, {@code ""} for a pure number;
- * output elements are written {@code name} or {@code name[i]}.
+ * ({@code {name, unit, length, outputs}}), {@code tier} (how the laws are solved: {@code constant-affine},
+ * {@code affine} or {@code nonlinear}), {@code condition} (the 2-norm condition number of dC/dy_completed at the
+ * completion's reference point), {@code completed} (the completed output elements, from the {@code complete}
+ * statement or else the automatic choice, in solve order), {@code free} (the other output elements) and
+ * {@code warnings}; a file without laws has {@code tier} and {@code condition} null, {@code completed} empty and
+ * every output free. An invalid file, or one whose laws cannot be completed, gives {@code file},
+ * {@code valid: false}, {@code errors} and {@code warnings}. Each finding of the checker is
+ * {@code {line, column, message}}; a warning about the completion has no place in the file and is
+ * {@code {message}} alone. Lengths count elements (1 for a scalar; for a law, its scalar equations); units are the
+ * text as written, {@code ""} for a pure number; output elements are written {@code name} or {@code name[i]}, as
+ * in a CSV header.
  */
 final class JsonReport {
     private JsonReport() {
@@ -47,8 +53,21 @@ final class JsonReport {
             json.endObject();
         }
         json.endArray();
+        json.name("tier").value(s.tier());
+        json.name("condition");
+        if (s.tier() == null) {
+            json.nullValue();
+        } else {
+            json.value(s.condition());
+        }
         strings(json.name("completed"), s.completed());
-        findings(json, "warnings", s.warnings());
+        strings(json.name("free"), s.free());
+        json.name("warnings").beginArray();
+        writeFindings(json, s.warnings());
+        for (String w : s.completionWarnings()) {
+            json.beginObject().name("message").value(w).endObject();
+        }
+        json.endArray();
         json.endObject();
         out.println();
     }
@@ -89,10 +108,14 @@ final class JsonReport {
 
     private static void findings(JsonWriter json, String key, List<Diagnostic> findings) {
         json.name(key).beginArray();
+        writeFindings(json, findings);
+        json.endArray();
+    }
+
+    private static void writeFindings(JsonWriter json, List<Diagnostic> findings) {
         for (Diagnostic d : findings) {
             json.beginObject().name("line").value(d.line()).name("column").value(d.column())
                     .name("message").value(d.message()).endObject();
         }
-        json.endArray();
     }
 }

@@ -6,10 +6,13 @@ import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.ExprPrinter;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.algebra.Unit;
+import dev.lawful.enforce.Completion;
+import dev.lawful.enforce.Tier;
+import dev.lawful.io.ShortestDecimal;
 import java.util.ArrayList;
-import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
+import java.util.Locale;
 import java.util.Map;
 import java.util.Set;
 import java.util.TreeSet;
@@ -24,15 +27,21 @@ import java.util.TreeSet;
  * @param definitions the definitions in declaration order
  * @param laws        the laws in declaration order
  * @param outputWidth the number of output elements
- * @param completed   the output elements of the {@code complete} statement, in the order written (empty when
- *                    there is none)
- * @param free        the other output elements, in output order
- * @param hasCompletion whether the file has a {@code complete} statement
+ * @param completed   the completed output elements, in the order the completion solves for them ({@code name} or
+ *                    {@code name[i]}); empty when the file has no laws
+ * @param free        the other output elements, in the completion's order
+ * @param hasCompletion whether the file has a {@code complete} statement (without one, the completed outputs are
+ *                    the automatic choice)
+ * @param tier        how the laws are solved ({@link Tier#label()}), or null when the file has no laws
+ * @param condition   the 2-norm condition number of dC/dy_completed at the completion's reference point, or NaN
+ *                    when the file has no laws
+ * @param completionWarnings the completion's notes (the automatic choice, ill-conditioning, missing guesses)
  * @param warnings    the checker's warnings
  */
 record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item> constants,
                   List<Definition> definitions, List<Law> laws, int outputWidth, List<String> completed,
-                  List<String> free, boolean hasCompletion, List<Diagnostic> warnings) {
+                  List<String> free, boolean hasCompletion, String tier, double condition,
+                  List<String> completionWarnings, List<Diagnostic> warnings) {
 
     /**
      * A declared input, output or constant.
@@ -75,17 +84,19 @@ record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item>
         laws = List.copyOf(laws);
         completed = List.copyOf(completed);
         free = List.copyOf(free);
+        completionWarnings = List.copyOf(completionWarnings);
         warnings = List.copyOf(warnings);
     }
 
     /**
      * Gathers the summary of a checked law set.
      *
-     * @param file the file name to report
-     * @param set  the law set read from it
+     * @param file       the file name to report
+     * @param set        the law set read from it
+     * @param completion its completion ({@link Completion#of(LawSet)}), or null when it has no laws
      * @return its summary
      */
-    static LawSummary of(String file, LawSet set) {
+    static LawSummary of(String file, LawSet set, Completion completion) {
         List<Item> inputs = new ArrayList<>();
         for (Declaration.Variable v : set.inputs()) {
             inputs.add(new Item(v.name(), v.size(), v.unit()));
@@ -123,24 +134,32 @@ record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item>
             laws.add(new Law(l.name(), set.lawUnit(l.name()), Math.max(1, set.lawShape(l.name())), names));
         }
 
-        List<String> completed = new ArrayList<>();
-        Set<Integer> done = new HashSet<>();
-        for (int k : set.completedOutputs()) {
-            completed.add(outputNames.get(k));
-            done.add(k);
-        }
-        List<String> free = new ArrayList<>();
-        for (int k = 0; k < outputNames.size(); k++) {
-            if (!done.contains(k)) {
-                free.add(outputNames.get(k));
-            }
-        }
+        List<String> completed = completion == null ? List.of() : completion.completedNames();
+        List<String> free = completion == null ? outputNames : completion.freeNames();
         return new LawSummary(file, inputs, outputs, constants, definitions, laws, outputNames.size(), completed,
-                free, set.completion().isPresent(), set.warnings());
+                free, set.completion().isPresent(), completion == null ? null : completion.tier().label(),
+                completion == null ? Double.NaN : completion.condition(),
+                completion == null ? List.of() : completion.warnings(), set.warnings());
     }
 
     /** @return the number of scalar equations of all laws together */
     int equations() {
         return laws.stream().mapToInt(Law::length).sum();
+    }
+
+    /**
+     * @param v a number, such as a condition number
+     * @return {@code v} rounded to three significant digits, in the shortest form that reads back to that
+     *         rounded value ({@code 6.35}, {@code 2660}, {@code 1}, {@code 3.16e9}); {@code infinite} for infinity
+     *         and {@code -} for NaN
+     */
+    static String threeDigits(double v) {
+        if (Double.isNaN(v)) {
+            return "-";
+        }
+        if (Double.isInfinite(v)) {
+            return v > 0 ? "infinite" : "-infinite";
+        }
+        return ShortestDecimal.format(Double.parseDouble(String.format(Locale.ROOT, "%.3g", v)));
     }
 }

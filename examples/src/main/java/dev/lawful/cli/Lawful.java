@@ -8,28 +8,33 @@ import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.ParameterException;
 import picocli.CommandLine.Spec;
+import picocli.CommandLine.UnmatchedArgumentException;
 
 /**
- * The {@code lawful} command line: {@code lawful check FILE.law [--json]}, {@code lawful help [COMMAND]},
- * {@code --help} and {@code --version} on every command.
+ * The {@code lawful} command line: {@code lawful check FILE.law [--json]},
+ * {@code lawful complete FILE.law --in DATA.csv --out FULL.csv [--keep-going]},
+ * {@code lawful verify FILE.law --in FULL.csv [--tol T] [--json]}, {@code lawful help [COMMAND]}, {@code --help}
+ * and {@code --version} on every command.
  *
- * <p>Exit status: {@value #EXIT_OK} on success, {@value #EXIT_INVALID} when a law file has errors,
- * {@value #EXIT_USAGE} for a usage error or a file that cannot be read, {@value #EXIT_INTERNAL} for an internal
- * error (a bug, printed with its stack trace).
+ * <p>Exit status: {@value #EXIT_OK} on success, {@value #EXIT_INVALID} when a law file has errors, the data break a
+ * law ({@code verify}) or a row cannot be completed ({@code complete}), {@value #EXIT_USAGE} for a usage error or a
+ * file that cannot be read or is malformed, {@value #EXIT_INTERNAL} for an internal error (a bug, printed with its
+ * stack trace).
  */
 @Command(name = "lawful",
         mixinStandardHelpOptions = true,
         version = Lawful.VERSION,
         synopsisSubcommandLabel = "COMMAND",
-        description = "Checks law files: the analytic laws (conservation of mass, energy, elements) a network's "
-                + "outputs are made to obey exactly.",
-        subcommands = {CheckCommand.class, CommandLine.HelpCommand.class},
+        description = "Checks law files (the analytic laws, such as conservation of mass, energy or elements, that a "
+                + "network's outputs are made to obey exactly), completes tables of data so that they obey them, "
+                + "and verifies how well data obey them.",
+        subcommands = {CheckCommand.class, CompleteCommand.class, VerifyCommand.class, CommandLine.HelpCommand.class},
         commandListHeading = "%nCommands:%n",
         exitCodeListHeading = "%nExit status:%n",
         exitCodeList = {
             "0:success",
-            "1:the law file has errors",
-            "2:usage error, or the file cannot be read",
+            "1:the law file has errors, the data break a law (verify), or a row cannot be completed (complete)",
+            "2:usage error, or a file that cannot be read or is malformed",
             "3:internal error (a bug)"},
         footerHeading = "%nCaution:%n",
         footer = "Lawful makes a surrogate obey the laws you write; it does not make the surrogate valid or safe. "
@@ -42,9 +47,9 @@ public final class Lawful implements Runnable {
 
     /** Exit status of a successful command. */
     public static final int EXIT_OK = 0;
-    /** Exit status when a law file has errors. */
+    /** Exit status when a law file has errors, data break a law, or a row cannot be completed. */
     public static final int EXIT_INVALID = 1;
-    /** Exit status of a usage error (picocli's default for bad options) or of a file that cannot be read. */
+    /** Exit status of a usage error (picocli's default for bad options), or of a file that cannot be read or is malformed. */
     public static final int EXIT_USAGE = 2;
     /** Exit status of an internal error: an unexpected exception, which is a bug. */
     public static final int EXIT_INTERNAL = 3;
@@ -86,6 +91,7 @@ public final class Lawful implements Runnable {
         CommandLine cmd = new CommandLine(new Lawful());
         cmd.setOut(o);
         cmd.setErr(e);
+        cmd.setParameterExceptionHandler(Lawful::usageError);
         cmd.setExecutionExceptionHandler((ex, line, parsed) -> {
             line.getErr().println("lawful: internal error: " + ex);
             ex.printStackTrace(line.getErr());
@@ -97,6 +103,27 @@ public final class Lawful implements Runnable {
             o.flush();
             e.flush();
         }
+    }
+
+    /**
+     * Prints a usage error: the message, for an unknown command the nearest command name when one is near (picocli's
+     * own suggestions would offer any command, and then leave out the usage), and the usage of the command.
+     *
+     * @return the exit status {@link #EXIT_USAGE}
+     */
+    private static int usageError(ParameterException ex, String[] args) {
+        CommandLine line = ex.getCommandLine();
+        PrintWriter err = line.getErr();
+        err.println(ex.getMessage());
+        if (ex instanceof UnmatchedArgumentException u && !u.getUnmatched().isEmpty()
+                && !line.getSubcommands().isEmpty()) {
+            String near = Spelling.nearest(u.getUnmatched().get(0), line.getSubcommands().keySet());
+            if (near != null) {
+                err.println("Did you mean 'lawful " + near + "'?");
+            }
+        }
+        line.usage(err);
+        return EXIT_USAGE;
     }
 
     /**

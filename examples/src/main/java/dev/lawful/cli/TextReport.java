@@ -19,6 +19,7 @@ import java.util.List;
  *
  * completed     T[0], T[1], T[2]  (3 of 5 output elements)
  * free          a, b
+ * tier          constant-affine, condition number 1.73
  * </pre>
  *
  * Lengths are right-aligned; a scalar has length 1; a pure number's unit shows as {@code 1}. A list of output
@@ -106,18 +107,21 @@ final class TextReport {
 
         out.println();
         String completed = pad("completed", nameWidth) + GAP;
-        if (!s.hasCompletion()) {
-            out.println(completed + "none: the file has no complete statement");
-        } else {
-            wrap(out, completed, s.completed(),
-                    GAP + "(" + s.completed().size() + " of " + count(s.outputWidth(), "output element") + ")");
-            String free = pad("free", nameWidth) + GAP;
-            if (s.free().isEmpty()) {
-                out.println(free + "none");
-            } else {
-                wrap(out, free, s.free(), "");
-            }
+        if (s.tier() == null) {
+            out.println(completed + "none: the file has no laws");
+            return;
         }
+        wrap(out, completed, s.completed(), GAP + "(" + s.completed().size() + " of "
+                + count(s.outputWidth(), "output element")
+                + (s.hasCompletion() ? "" : ", chosen automatically: the file has no complete statement") + ")");
+        String free = pad("free", nameWidth) + GAP;
+        if (s.free().isEmpty()) {
+            out.println(free + "none");
+        } else {
+            wrap(out, free, s.free(), "");
+        }
+        out.println(pad("tier", nameWidth) + GAP + s.tier() + ", condition number "
+                + LawSummary.threeDigits(s.condition()));
     }
 
     private void items(PrintWriter out, String title, List<LawSummary.Item> items) {

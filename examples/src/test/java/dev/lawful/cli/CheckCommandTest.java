@@ -74,6 +74,42 @@ class CheckCommandTest {
         // completed in the order of the complete statement, the rest free in output order
         assertTrue(lines.contains("completed    out[2], out[4], out[1], out[5]  (4 of 6 output elements)"), r.out());
         assertTrue(lines.contains("free         out[0], out[3]"), r.out());
+        // atom counts are constants, so every coefficient is constant; 6.35 is the condition number below to three
+        // digits
+        assertEquals("tier         constant-affine, condition number 6.35", lines.get(lines.size() - 1), r.out());
+    }
+
+    /**
+     * The 2-norm condition number of the reformer's completed block dC/dy for out[2] (CO), out[4] (H2), out[1]
+     * (H2O), out[5] (N2), rows C, H, O, N of the file's atom counts: [[1,0,0,0],[0,2,2,0],[1,0,1,0],[0,0,0,2]].
+     * The N2 column is its own block with singular value 2; the other three columns B = [[1,0,0],[0,2,2],[1,0,1]]
+     * have BᵀB = [[2,0,1],[0,4,4],[1,4,5]], whose characteristic polynomial is λ³ − 11λ² + 21λ − 4 (trace 11, sum
+     * of principal minors 8 + 9 + 4, determinant det(B)² = 4). Its roots bracket 4, so the condition number is
+     * sqrt(λmax / λmin). Source: hand derivation from the law file's constants (linear algebra, common practice).
+     */
+    private static double reformerCondition() {
+        double max = root(4, 11);
+        double min = root(0, 1);
+        assertTrue(min < 4 && max > 4);
+        return Math.sqrt(max / min);
+    }
+
+    /** @return the root of λ³ − 11λ² + 21λ − 4 in [lo, hi] by bisection (the polynomial changes sign there) */
+    private static double root(double lo, double hi) {
+        java.util.function.DoubleUnaryOperator p = l -> ((l - 11) * l + 21) * l - 4;
+        double flo = p.applyAsDouble(lo);
+        for (int i = 0; i < 200 && hi - lo > 0; i++) {
+            double mid = 0.5 * (lo + hi);
+            if (mid == lo || mid == hi) {
+                break;
+            }
+            if ((p.applyAsDouble(mid) < 0) == (flo < 0)) {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        return 0.5 * (lo + hi);
     }
 
     @Test
@@ -83,8 +119,8 @@ class CheckCommandTest {
         assertEquals(0, r.code(), r.err());
         assertEquals("", r.err());
         Map<String, Object> doc = object(Json.parse(r.out()));
-        assertEquals(Set.of("file", "valid", "inputs", "outputs", "constants", "definitions", "laws", "completed",
-                "warnings"), doc.keySet());
+        assertEquals(Set.of("file", "valid", "inputs", "outputs", "constants", "definitions", "laws", "tier",
+                "condition", "completed", "free", "warnings"), doc.keySet());
         assertEquals(file.toString(), doc.get("file"));
         assertEquals(Boolean.TRUE, doc.get("valid"));
 
@@ -117,7 +153,51 @@ class CheckCommandTest {
         assertEquals(List.of("out[5]"), object(laws.get(3)).get("outputs"));
         // Source: the file's statement "complete out[2], out[4], out[1], out[5]"
         assertEquals(List.of("out[2]", "out[4]", "out[1]", "out[5]"), doc.get("completed"));
+        assertEquals(List.of("out[0]", "out[3]"), doc.get("free"));
+        assertEquals("constant-affine", doc.get("tier"));
+        double condition = reformerCondition();
+        assertEquals(condition, (Double) doc.get("condition"), 1e-12 * condition);
         assertEquals(List.of(), doc.get("warnings"));
+    }
+
+    @Test
+    void tierFollowsHowTheCompletedOutputsEnterTheLaws() throws IOException {
+        // Source: the tier definitions of the project's guide: constant coefficients are constant-affine; the
+        // district heating mixing law multiplies two completed outputs (m_back * T_back), which is nonlinear
+        Map<String, Object> water = object(Json.parse(run("check", "--json",
+                example("water-network.law").toString()).out()));
+        assertEquals("constant-affine", water.get("tier"));
+        assertEquals(List.of("supply", "p[0]", "p[3]", "p[4]"), water.get("completed"));
+        assertEquals(List.of("p[1]", "p[2]"), water.get("free"));
+        Captured heating = run("check", "--json", example("district-heating.law").toString());
+        assertEquals(0, heating.code(), heating.err());
+        Map<String, Object> doc = object(Json.parse(heating.out()));
+        assertEquals("nonlinear", doc.get("tier"));
+        assertTrue((Double) doc.get("condition") >= 1, "a 2-norm condition number is at least 1");
+        assertEquals(List.of("T_return[0]", "T_return[1]", "T_return[2]"), doc.get("free"));
+        // the completion's notes (here: Newton's starting point) are warnings without a place in the file
+        for (Object w : list(doc.get("warnings"))) {
+            assertEquals(Set.of("message"), object(w).keySet());
+        }
+        Captured text = run("check", example("district-heating.law").toString());
+        assertTrue(text.out().lines().anyMatch(l -> l.startsWith("tier           nonlinear, condition number ")),
+                text.out());
+    }
+
+    @Test
+    void lawsThatCannotBeCompletedAreAnErrorOfTheFile() throws IOException {
+        Path file = write("twice.law", "input x m\noutput y m\nlaw a: y = x\nlaw b: 2 * y = 2 * x\n");
+        LawSet set = LawSet.read(file);
+        LawException e = assertThrows(LawException.class, () -> dev.lawful.enforce.Completion.of(set));
+        Captured r = run("check", file.toString());
+        assertEquals(1, r.code());
+        assertEquals("", r.out());
+        assertEquals(e.getMessage() + "\n", r.err(), "the core's own message, word for word");
+        Captured json = run("check", "--json", file.toString());
+        assertEquals(1, json.code());
+        Map<String, Object> doc = object(Json.parse(json.out()));
+        assertEquals(Boolean.FALSE, doc.get("valid"));
+        assertEquals(e.errors().get(0).message(), object(list(doc.get("errors")).get(0)).get("message"));
     }
 
     // ---- the other shipped examples --------------------------------------------------------------------------
@@ -291,8 +371,8 @@ class CheckCommandTest {
         assertTrue(r.out().startsWith("Usage: lawful check [-hV] [--json] FILE.law\n"), r.out());
         String text = LawfulTest.words(r.out());
         assertTrue(text.contains("--json print one JSON object instead of the readable summary"), text);
-        assertTrue(text.contains("Exit status: 0 the file is valid 1 the file has errors 2 usage error, or the"
-                + " file cannot be read"), text);
+        assertTrue(text.contains("Exit status: 0 the file is valid 1 the file has errors, or its laws cannot be"
+                + " completed 2 usage error, or the file cannot be read"), text);
     }
 
     // ---- written in temporary files --------------------------------------------------------------------------
@@ -303,18 +383,23 @@ class CheckCommandTest {
         Captured r = run("check", file.toString());
         assertEquals(0, r.code(), r.err());
         List<String> lines = r.out().lines().toList();
-        assertTrue(lines.contains("completed    none: the file has no complete statement"), r.out());
-        assertTrue(lines.stream().noneMatch(l -> l.startsWith("free")), r.out());
+        // the one law involves the one output, so the automatic choice can only be y
+        assertTrue(lines.contains("completed    y  (1 of 1 output element, chosen automatically: the file has no"
+                + " complete statement)"), r.out());
+        assertTrue(lines.contains("free         none"), r.out());
         assertTrue(lines.contains("constants    none"), r.out());
         Map<String, Object> doc = object(Json.parse(run("check", "--json", file.toString()).out()));
-        assertEquals(List.of(), doc.get("completed"));
+        assertEquals(List.of("y"), doc.get("completed"));
+        assertEquals(List.of(), doc.get("free"));
         assertEquals(List.of(Map.of("name", "same", "unit", "m", "length", 1.0, "outputs", List.of("y"))),
                 doc.get("laws"));
     }
 
     @Test
     void longOutputListsWrapUnderTheirColumn() throws IOException {
-        Path file = write("long.law", "input a[40] kg\noutput b[40] kg\nlaw each: b = a\nlaw all: sum(b) = sum(a)\n");
+        // c keeps the 41 laws independent, so the file can be completed (check reports a file that cannot)
+        Path file = write("long.law", "input a[40] kg\noutput b[40] kg\noutput c kg\nlaw each: b = a\n"
+                + "law all: sum(b) + c = sum(a)\n");
         Captured r = run("check", file.toString());
         assertEquals(0, r.code(), r.err());
         List<String> lines = r.out().lines().toList();
@@ -363,6 +448,12 @@ class CheckCommandTest {
         for (String section : List.of("inputs", "outputs", "constants", "definitions", "laws")) {
             assertTrue(lines.stream().anyMatch(l -> l.matches(section + " +none")), section + "\n" + r.out());
         }
+        assertTrue(lines.stream().anyMatch(l -> l.matches("completed +none: the file has no laws")), r.out());
+        Map<String, Object> doc = object(Json.parse(run("check", "--json", file.toString()).out()));
+        assertTrue(doc.containsKey("tier") && doc.get("tier") == null, doc.toString());
+        assertTrue(doc.containsKey("condition") && doc.get("condition") == null, doc.toString());
+        assertEquals(List.of(), doc.get("completed"));
+        assertEquals(List.of(), doc.get("free"));
     }
 
     // ---- helpers ---------------------------------------------------------------------------------------------

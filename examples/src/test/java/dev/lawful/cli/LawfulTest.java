@@ -45,19 +45,23 @@ class LawfulTest {
         assertEquals("", r.err());
         assertTrue(r.out().startsWith("Usage: lawful [-hV] COMMAND\n"), r.out());
         assertTrue(r.out().contains("\n  check "), r.out());
+        assertTrue(r.out().contains("\n  complete "), r.out());
+        assertTrue(r.out().contains("\n  verify "), r.out());
         assertTrue(r.out().contains("\n  help "), r.out());
         String text = words(r.out());
         assertTrue(text.contains("Caution: Lawful makes a surrogate obey the laws you write; it does not make the"
                 + " surrogate valid or safe. Validate it against trusted models and the applicable codes, and have it"
                 + " reviewed by a licensed professional, before it informs any real decision."), text);
-        assertTrue(text.contains("Exit status: 0 success 1 the law file has errors 2 usage error, or the file cannot"
-                + " be read 3 internal error (a bug)"), text);
+        assertTrue(text.contains("Exit status: 0 success 1 the law file has errors, the data break a law (verify),"
+                + " or a row cannot be completed (complete) 2 usage error, or a file that cannot be read or is"
+                + " malformed 3 internal error (a bug)"), text);
         assertEquals(r.out(), run("-h").out());
     }
 
     @Test
     void versionIsPrintedByEveryCommand() {
-        for (String[] args : new String[][] {{"--version"}, {"-V"}, {"check", "--version"}}) {
+        for (String[] args : new String[][] {{"--version"}, {"-V"}, {"check", "--version"}, {"verify", "-V"},
+            {"complete", "--version"}}) {
             Captured r = run(args);
             assertEquals(0, r.code(), String.join(" ", args));
             assertEquals("lawful 0.1.0-SNAPSHOT\n", r.out());
@@ -95,6 +99,12 @@ class LawfulTest {
         assertEquals("", command.out());
         assertTrue(command.err().contains("frobnicate"), command.err());
         assertTrue(command.err().contains("Usage: lawful"), command.err());
+        assertTrue(!command.err().contains("Did you mean"), "nothing is near 'frobnicate': " + command.err());
+
+        Captured near = run("verfy", "a.law");
+        assertEquals(2, near.code());
+        assertTrue(near.err().startsWith("Unmatched arguments from index 0: 'verfy', 'a.law'\nDid you mean 'lawful"
+                + " verify'?\nUsage: lawful"), near.err());
     }
 
     @Test
