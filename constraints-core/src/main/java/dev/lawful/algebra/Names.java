@@ -1,7 +1,10 @@
 package dev.lawful.algebra;
 
-/** Spelling help for diagnostics: the nearest known name to a misspelt one. */
-final class Names {
+/**
+ * Spelling help for messages: the nearest known name to a misspelt one. Used by the law language's diagnostics
+ * and by tools built on it (the command line's CSV column names), so every suggestion follows one rule.
+ */
+public final class Names {
     private Names() {
     }
 
@@ -13,7 +16,7 @@ final class Names {
     /** Names longer than this get suggestions only for a difference in case (edit distance would cost too much). */
     private static final int MAX_SUGGEST_LENGTH = 64;
 
-    static String nearest(String name, Iterable<String> candidates) {
+    public static String nearest(String name, Iterable<String> candidates) {
         for (String c : candidates) {
             if (c.equalsIgnoreCase(name) && !c.equals(name)) {
                 return c;
@@ -49,8 +52,11 @@ final class Names {
         return bestDistance <= limit ? best : null;
     }
 
-    /** Optimal string alignment distance (Levenshtein with adjacent transpositions). */
-    static int distance(String a, String b) {
+    /**
+     * @return the optimal string alignment distance between {@code a} and {@code b}: insertions, deletions,
+     *         substitutions and swaps of neighbours
+     */
+    public static int distance(String a, String b) {
         int n = a.length();
         int m = b.length();
         int[][] d = new int[n + 1][m + 1];

@@ -19,8 +19,10 @@ import java.util.Set;
  *
  * <p><b>Tiers</b> ({@link Tier}): constant-affine law sets are folded at build time into y_c = M z + N x + k;
  * affine ones solve A(x, z) y_c = b(x, z) per sample by LU with partial pivoting (A = ∂C/∂y_c); nonlinear ones
- * run damped Newton per sample from the law text's {@code guess} values (or, without a guess, from the reference
- * value 1 in the output's declared unit), stopping when every residual is at rounding level or after
+ * run damped Newton per sample from the law text's {@code guess} values (or, without a guess, from fixed values
+ * between 0.5 and 1.5 of the output's declared unit, different per output so that symmetric laws are not started
+ * on their degenerate point; which root Newton then finds is not specified), stopping when every residual is at
+ * rounding level or after
  * {@link Builder#maxIterations(int)} steps. Every tier ends with one refinement step on the residual evaluated with
  * compensated sums.
  *
@@ -399,8 +401,9 @@ public final class Completion {
         }
         this.guessEvaluator = guessTerms.isEmpty() ? null : LawEvaluator.forTerms(expanded, guessTerms, guessNames);
         this.guessTarget = targets.stream().mapToInt(Integer::intValue).toArray();
-        this.startValue = new double[n];
-        Arrays.fill(startValue, 1.0);
+        // without a guess: generic values, different per output, so Newton never starts on a symmetric point
+        // (equal velocities in a collision) where the laws are degenerate
+        this.startValue = generic(n, 0x5EED3L);
         if (tier == Tier.NONLINEAR && guessTerms.size() < n) {
             List<String> missing = new ArrayList<>();
             for (int k = 0; k < n; k++) {
@@ -408,8 +411,8 @@ public final class Completion {
                     missing.add(laws.outputNames().get(completed[k]));
                 }
             }
-            notes.add("nonlinear laws: Newton starts " + String.join(", ", missing) + " at 1 (in the declared unit);"
-                    + " add a 'guess' statement to pick the root and speed convergence");
+            notes.add("nonlinear laws: Newton starts " + String.join(", ", missing) + " at fixed values between 0.5"
+                    + " and 1.5 (in the declared unit); add a 'guess' statement to pick the root and speed convergence");
         }
         // the solve order, and the factors of every block that is constant
         this.stages = Stages.of(expanded, role, entryLaw, entryRole);
@@ -871,7 +874,7 @@ public final class Completion {
     }
 
     private void forwardNewton(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
-        // starting values: guesses where the law text gives them, 1 (declared unit) elsewhere
+        // starting values: guesses where the law text gives them, the generic start values elsewhere
         for (int s = 0; s < batch; s++) {
             for (int k = 0; k < n; k++) {
                 full[s * nOut + completed[k]] = startValue[k];

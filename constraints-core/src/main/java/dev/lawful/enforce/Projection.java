@@ -1,5 +1,8 @@
 package dev.lawful.enforce;
 
+import static dev.lawful.enforce.Batches.load;
+import static dev.lawful.enforce.Batches.store;
+
 import java.util.Arrays;
 import java.util.Objects;
 
@@ -561,23 +564,6 @@ public final class Projection {
         }
     }
 
-    private static void load(double[] src, int from, double[] dst, int count) {
-        if (count > 0) {
-            System.arraycopy(src, from, dst, 0, count);
-        }
-    }
-
-    private static void load(float[] src, int from, double[] dst, int count) {
-        for (int i = 0; i < count; i++) {
-            dst[i] = src[from + i];
-        }
-    }
-
-    private static void store(double[] src, float[] dst, int to, int count) {
-        for (int i = 0; i < count; i++) {
-            dst[to + i] = (float) src[i];
-        }
-    }
 
     private static void storeStatus(Workspace ws, byte[] status, int s0, int m) {
         if (status != null) {

@@ -188,7 +188,7 @@ final class DataFiles {
         // a huge header of unknown names gets no suggestions rather than a quadratic search
         List<String> compared = (long) unknown.size() * missing.size() <= MAX_PAIRS ? unknown : List.of();
         for (String column : compared) {
-            String near = Spelling.nearest(column, unmatched);
+            String near = dev.lawful.algebra.Names.nearest(column, unmatched);
             if (near != null) {
                 lines.add(prefix + file + ": line " + line + ", column '" + column + "': not an element of "
                         + lawFile + "; did you mean '" + near + "' (" + needed.get(near) + ")?");

@@ -117,7 +117,7 @@ public final class Lawful implements Runnable {
         err.println(ex.getMessage());
         if (ex instanceof UnmatchedArgumentException u && !u.getUnmatched().isEmpty()
                 && !line.getSubcommands().isEmpty()) {
-            String near = Spelling.nearest(u.getUnmatched().get(0), line.getSubcommands().keySet());
+            String near = dev.lawful.algebra.Names.nearest(u.getUnmatched().get(0), line.getSubcommands().keySet());
             if (near != null) {
                 err.println("Did you mean 'lawful " + near + "'?");
             }

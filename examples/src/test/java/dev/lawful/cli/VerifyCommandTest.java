@@ -1,5 +1,6 @@
 package dev.lawful.cli;
 
+import dev.lawful.algebra.Names;
 import static dev.lawful.cli.LawfulTest.run;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
@@ -164,15 +165,15 @@ class VerifyCommandTest {
     @Test
     void spellingHelpFollowsTheLawLanguageRule() {
         // Source: the rule of the law language's own spelling help (DEVELOPERS.md, dev.lawful.algebra.Names)
-        assertEquals("out[2]", Spelling.nearest("OUT[2]", List.of("out[2]", "out[3]")), "case only");
-        assertEquals("out[2]", Spelling.nearest("ot[2]", List.of("out[2]", "feed[2]")), "a dropped letter");
-        assertEquals("out[3]", Spelling.nearest("out(3)", List.of("out[3]", "feed[3]")), "two replaced");
-        assertEquals(null, Spelling.nearest("pressure", List.of("out[3]", "T")), "nothing near");
-        assertEquals("T", Spelling.nearest("t", List.of("T", "x")), "case, even for one letter");
-        assertEquals(null, Spelling.nearest("x", List.of("y")), "one-letter names differ by more than a letter");
-        assertEquals(null, Spelling.nearest("a".repeat(65), List.of("a".repeat(64))), "long names: case only");
-        assertEquals(2, Spelling.distance("feed_0", "feed[0]"));
-        assertEquals(1, Spelling.distance("otu", "out"), "a swap of neighbours counts once");
+        assertEquals("out[2]", Names.nearest("OUT[2]", List.of("out[2]", "out[3]")), "case only");
+        assertEquals("out[2]", Names.nearest("ot[2]", List.of("out[2]", "feed[2]")), "a dropped letter");
+        assertEquals("out[3]", Names.nearest("out(3)", List.of("out[3]", "feed[3]")), "two replaced");
+        assertEquals(null, Names.nearest("pressure", List.of("out[3]", "T")), "nothing near");
+        assertEquals("T", Names.nearest("t", List.of("T", "x")), "case, even for one letter");
+        assertEquals(null, Names.nearest("x", List.of("y")), "one-letter names differ by more than a letter");
+        assertEquals(null, Names.nearest("a".repeat(65), List.of("a".repeat(64))), "long names: case only");
+        assertEquals(2, Names.distance("feed_0", "feed[0]"));
+        assertEquals(1, Names.distance("otu", "out"), "a swap of neighbours counts once");
     }
 
     @Test
