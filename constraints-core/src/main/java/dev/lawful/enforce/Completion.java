@@ -774,13 +774,24 @@ public final class Completion {
                 }
                 applyStep(s, g, 1.0, full, ws);
             }
-            refineStage(x, batch, full, st, ws, g);
         }
-        verify(x, batch, full, st, ws);
+        // every stage's block factors are kept (at their own offsets), so the refinement can reuse them
+        refineAll(x, batch, full, st, ws);
     }
 
-    /** Refines every stage in order: where its laws are above rounding level, one correction with its block. */
+    /**
+     * Checks every sample once; only when some sample is above rounding level, refines stage by stage (one
+     * correction with its block where its laws are not yet within the bound) and checks again.
+     */
     private void refineAll(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
+        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
+        boolean needed = false;
+        for (int s = 0; s < batch && !needed; s++) {
+            needed = st[s] == SampleStatus.OK && !converged(s, ws, null);
+        }
+        if (!needed) {
+            return;
+        }
         for (int g = 0; g < stages.stages.size(); g++) {
             refineStage(x, batch, full, st, ws, g);
         }
@@ -809,7 +820,7 @@ public final class Completion {
         if (stageLu[g] != null) {
             DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
         } else {
-            DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n, s * n);
+            DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n + stages.offsets[g], s * n + pivotOffset(g));
         }
         for (int j = 0; j < m; j++) {
             full[s * nOut + completed[stage.vars()[j]]] += t * v[j];
@@ -824,13 +835,22 @@ public final class Completion {
         Stages.Stage stage = stages.stages.get(g);
         int m = stage.size();
         int nnz = evaluator.outputNonzeros();
-        int base = s * n * n;
+        int base = s * n * n + stages.offsets[g];
         Arrays.fill(ws.lu, base, base + m * m, 0.0);
         int[] entries = stage.entries();
         for (int k = 0; k < entries.length; k++) {
             ws.lu[base + stage.rows()[k] * m + stage.cols()[k]] = ws.jy[s * nnz + entries[k]];
         }
-        return DenseLu.factor(ws.lu, m, ws.pivots, base, s * n);
+        return DenseLu.factor(ws.lu, m, ws.pivots, base, s * n + pivotOffset(g));
+    }
+
+    /** @return where stage g's pivots start within a sample's n pivot slots (the stages' sizes add up to n) */
+    private int pivotOffset(int g) {
+        int at = 0;
+        for (int h = 0; h < g; h++) {
+            at += stages.stages.get(h).size();
+        }
+        return at;
     }
 
     /** Builds the whole block A = ∂C/∂y_c of sample s (for gradients) and factors it into the workspace. */
@@ -966,7 +986,7 @@ public final class Completion {
                 if (stageLu[g] != null) {
                     DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
                 } else {
-                    DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n, s * n);
+                    DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n + stages.offsets[g], s * n + pivotOffset(g));
                 }
                 for (int j = 0; j < m; j++) {
                     int o = completed[stage.vars()[j]];

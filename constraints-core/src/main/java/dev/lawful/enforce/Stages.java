@@ -22,15 +22,17 @@ final class Stages {
     }
 
     final List<Stage> stages;
-    final int largest;
+    /** Where each stage's per-sample block factors start within a sample's n² work area (Σ m² ≤ n²). */
+    final int[] offsets;
 
     private Stages(List<Stage> stages) {
         this.stages = List.copyOf(stages);
-        int m = 0;
-        for (Stage s : stages) {
-            m = Math.max(m, s.size());
+        this.offsets = new int[stages.size()];
+        int at = 0;
+        for (int g = 0; g < stages.size(); g++) {
+            offsets[g] = at;
+            at += stages.get(g).size() * stages.get(g).size();
         }
-        this.largest = m;
     }
 
     /**
