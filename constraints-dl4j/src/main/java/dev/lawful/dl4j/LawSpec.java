@@ -1,0 +1,146 @@
+package dev.lawful.dl4j;
+
+import dev.lawful.algebra.LawException;
+import dev.lawful.algebra.LawSet;
+import dev.lawful.enforce.Completion;
+import dev.lawful.enforce.OnBadSample;
+import java.util.Arrays;
+import java.util.Objects;
+
+/**
+ * The laws a Deeplearning4j layer, vertex or loss enforces, in a form that serialises with the network: the law
+ * text itself (readable in the saved JSON configuration), optionally the completed outputs, and the bad-sample
+ * policy. The checked {@link LawSet} and its {@link Completion} are rebuilt from the text on first use and never
+ * serialised, so a saved file stays readable and a law text that no longer parses reports the law language's own
+ * diagnostics ({@link LawException}) when the network is loaded and first used.
+ *
+ * <p>Public no-argument constructor, getters and setters: Deeplearning4j's JSON mapper needs them.
+ */
+public final class LawSpec implements java.io.Serializable {
+    private static final long serialVersionUID = 1L;
+
+    private String lawText;
+    private String sourceName = "<network>";
+    private String[] completed;
+    private boolean maskBadSamples;
+    private transient volatile LawSet laws;
+    private transient volatile Completion completion;
+
+    /** For the JSON mapper; use {@link #of(String)} or {@link #of(LawSet)}. */
+    public LawSpec() {
+    }
+
+    /**
+     * @param lawText law-language text
+     * @return the spec
+     * @throws LawException when the text does not parse or check
+     */
+    public static LawSpec of(String lawText) {
+        LawSpec s = new LawSpec();
+        s.setLawText(lawText);
+        s.lawSet();
+        return s;
+    }
+
+    /** @return a spec holding the printed text of {@code laws} */
+    public static LawSpec of(LawSet laws) {
+        return of(laws.toString());
+    }
+
+    /** @return the law text */
+    public String getLawText() {
+        return lawText;
+    }
+
+    /** Sets the law text; the checked law set is rebuilt on next use. */
+    public void setLawText(String lawText) {
+        this.lawText = Objects.requireNonNull(lawText, "lawText");
+        this.laws = null;
+        this.completion = null;
+    }
+
+    /** @return the name diagnostics show for the law text */
+    public String getSourceName() {
+        return sourceName;
+    }
+
+    /** Sets the name diagnostics show for the law text (for example the file it came from). */
+    public void setSourceName(String sourceName) {
+        this.sourceName = Objects.requireNonNull(sourceName, "sourceName");
+        this.laws = null;
+        this.completion = null;
+    }
+
+    /** @return the completed output elements ({@code name} or {@code name[i]}), or null to use the law text's choice */
+    public String[] getCompleted() {
+        return completed == null ? null : completed.clone();
+    }
+
+    /** Overrides the completed outputs; null uses the law text's {@code complete} statement or the automatic choice. */
+    public void setCompleted(String[] completed) {
+        this.completed = completed == null ? null : completed.clone();
+        this.completion = null;
+    }
+
+    /** @return whether bad samples give NaN rows ({@link OnBadSample#MASK}) rather than an exception */
+    public boolean isMaskBadSamples() {
+        return maskBadSamples;
+    }
+
+    /** Chooses {@link OnBadSample#MASK} (true) or {@link OnBadSample#THROW} (false, the default). */
+    public void setMaskBadSamples(boolean maskBadSamples) {
+        this.maskBadSamples = maskBadSamples;
+        this.completion = null;
+    }
+
+    /**
+     * @return the checked law set, parsed from the text on first use
+     * @throws LawException with the law language's diagnostics when the text does not parse or check
+     */
+    public LawSet lawSet() {
+        LawSet l = laws;
+        if (l == null) {
+            if (lawText == null) {
+                throw new IllegalStateException("the law spec has no law text; set it with setLawText");
+            }
+            l = LawSet.parse(sourceName, lawText);
+            laws = l;
+        }
+        return l;
+    }
+
+    /**
+     * @return the completion of the law set (built on first use, then shared: it is immutable and thread-safe)
+     * @throws LawException when the laws cannot be completed as asked
+     */
+    public Completion completion() {
+        Completion c = completion;
+        if (c == null) {
+            Completion.Builder b = Completion.builder(lawSet())
+                    .onBadSample(maskBadSamples ? OnBadSample.MASK : OnBadSample.THROW);
+            if (completed != null) {
+                b.complete(completed);
+            }
+            c = b.build();
+            completion = c;
+        }
+        return c;
+    }
+
+    @Override
+    public boolean equals(Object o) {
+        return o instanceof LawSpec s && Objects.equals(lawText, s.lawText) && sourceName.equals(s.sourceName)
+                && Arrays.equals(completed, s.completed) && maskBadSamples == s.maskBadSamples;
+    }
+
+    @Override
+    public int hashCode() {
+        return Objects.hash(lawText, sourceName, Arrays.hashCode(completed), maskBadSamples);
+    }
+
+    @Override
+    public String toString() {
+        return "LawSpec{" + sourceName + ", " + (lawText == null ? 0 : lawText.length()) + " characters"
+                + (completed == null ? "" : ", completed " + String.join(", ", completed)) + "}";
+    }
+}
