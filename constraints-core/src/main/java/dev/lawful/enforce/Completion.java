@@ -404,18 +404,27 @@ public final class Completion {
         // without a guess: generic values, different per output, so Newton never starts on a symmetric point
         // (equal velocities in a collision) where the laws are degenerate
         this.startValue = generic(n, 0x5EED3L);
-        if (tier == Tier.NONLINEAR && guessTerms.size() < n) {
-            List<String> missing = new ArrayList<>();
-            for (int k = 0; k < n; k++) {
-                if (!targets.contains(k)) {
-                    missing.add(laws.outputNames().get(completed[k]));
-                }
-            }
-            notes.add("nonlinear laws: Newton starts " + String.join(", ", missing) + " at fixed values between 0.5"
-                    + " and 1.5 (in the declared unit); add a 'guess' statement to pick the root and speed convergence");
-        }
         // the solve order, and the factors of every block that is constant
         this.stages = Stages.of(expanded, role, entryLaw, entryRole);
+        if (tier == Tier.NONLINEAR) {
+            // only outputs of stages that are nonlinear in their own outputs depend on where Newton starts
+            List<String> missing = new ArrayList<>();
+            for (Stages.Stage st : stages.stages) {
+                if (!stageIsNonlinear(st)) {
+                    continue;
+                }
+                for (int k : st.vars()) {
+                    if (!targets.contains(k)) {
+                        missing.add(laws.outputNames().get(completed[k]));
+                    }
+                }
+            }
+            if (!missing.isEmpty()) {
+                notes.add("nonlinear laws: Newton starts " + String.join(", ", missing) + " at fixed values between"
+                        + " 0.5 and 1.5 (in the declared unit); add a 'guess' statement to pick the root and speed"
+                        + " convergence");
+            }
+        }
         boolean constantBlock = tier == Tier.CONSTANT_AFFINE || (tier == Tier.AFFINE && blockIsConstant());
         this.stageLu = new double[stages.stages.size()][];
         this.stagePivot = new int[stages.stages.size()][];
@@ -498,6 +507,26 @@ public final class Completion {
             }
         }
         return allConstant ? Tier.CONSTANT_AFFINE : Tier.AFFINE;
+    }
+
+    /** @return whether some law of the stage has a derivative, with respect to a stage output, that uses one */
+    private boolean stageIsNonlinear(Stages.Stage st) {
+        Set<Integer> vars = new HashSet<>();
+        for (int k : st.vars()) {
+            vars.add(nIn + completed[k]);
+        }
+        for (int i : st.laws()) {
+            for (Map.Entry<Integer, Term> e : expanded.gradient(i).entrySet()) {
+                if (vars.contains(e.getKey())) {
+                    for (int v : e.getValue().variables()) {
+                        if (vars.contains(v)) {
+                            return true;
+                        }
+                    }
+                }
+            }
+        }
+        return false;
     }
 
     private boolean blockIsConstant() {
