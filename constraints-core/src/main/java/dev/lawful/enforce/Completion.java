@@ -52,8 +52,6 @@ import java.util.Set;
  * <p>Immutable and safe to share between threads; each thread passes its own {@link Workspace}.
  */
 public final class Completion {
-    private static final double EPS = 0x1p-53;
-
     /** Column order of the full output vector. */
     public enum Layout {
         /** Outputs in the order the law set declares them. */
@@ -64,13 +62,13 @@ public final class Completion {
 
     private final LawSet laws;
     private final ExpandedLaws expanded;
-    private final LawEvaluator evaluator;
-    private final int nIn;
-    private final int nOut;
-    private final int n;
-    private final int nFree;
-    private final int[] completed;
-    private final int[] free;
+    final LawEvaluator evaluator;
+    final int nIn;
+    final int nOut;
+    final int n;
+    final int nFree;
+    final int[] completed;
+    final int[] free;
     /** For each output: its completed index k ≥ 0, or −(f+1) for free index f. */
     private final int[] role;
     private final Tier tier;
@@ -78,63 +76,66 @@ public final class Completion {
     private final List<String> warnings;
     private final OnBadSample policy;
     private final Layout layout;
-    private final int maxIterations;
+    final int maxIterations;
     /** Per scalar law, d_i + 3 of the bound, with d_i its rounding depth. */
-    private final int[] boundFactor;
+    final int[] boundFactor;
     // output-Jacobian entries of the evaluator: law and completed index (or −(f+1))
-    private final int[] entryLaw;
-    private final int[] entryRole;
-    private final int[] inEntryLaw;
-    private final int[] inEntryColumn;
+    final int[] entryLaw;
+    final int[] entryRole;
+    final int[] inEntryLaw;
+    final int[] inEntryColumn;
     // constant-affine fold y_c = M z + N x + k
-    private final double[] foldM;
-    private final double[] foldN;
-    private final double[] foldK;
+    final double[] foldM;
+    final double[] foldN;
+    final double[] foldK;
     /** The solve order: triangular levels first, then the coupled block. */
-    private final Stages stages;
+    final Stages stages;
     /** Per stage: factors of its block when the block is constant (constant-affine, or affine with constant A). */
-    private final double[][] stageLu;
-    private final int[][] stagePivot;
+    final double[][] stageLu;
+    final int[][] stagePivot;
     /** Factors of the whole block A when it is constant, for the gradients. */
-    private final double[] constantLu;
-    private final int[] constantPivot;
+    final double[] constantLu;
+    final int[] constantPivot;
     // Newton starting values
-    private final LawEvaluator guessEvaluator;
-    private final int[] guessTarget;
-    private final double[] startValue;
+    final LawEvaluator guessEvaluator;
+    final int[] guessTarget;
+    final double[] startValue;
+
+    /** The per-batch solving of every tier. */
+    private final CompletionSolve solve;
 
     /** Work arrays for one thread; grows to the largest batch it has seen, then allocates nothing. */
     public static final class Workspace {
-        private final LawEvaluator.Workspace evaluation;
-        private final LawEvaluator.Workspace guessEvaluation;
-        private final double[] a;
-        private final int[] pivot;
-        private final double[] vector;
-        private int capacity;
-        private double[] x;
-        private double[] z;
-        private double[] y;
-        private double[] out;
-        private double[] residual;
-        private double[] scale;
-        private double[] jy;
-        private double[] jx;
-        private double[] lu;
-        private int[] pivots;
-        private double[] previous;
-        private double[] step;
-        private double[] stepLength;
-        private double[] norm;
-        private double[] referenceScale;
-        private int[] iterations;
-        private byte[] status;
-        private double[] guesses;
-        private double[] g;
-        private double[] gyFloat;
-        private double[] gz;
-        private double[] gx;
+        final LawEvaluator.Workspace evaluation;
+        final LawEvaluator.Workspace guessEvaluation;
+        final double[] a;
+        final int[] pivot;
+        final double[] vector;
+        int capacity;
+        double[] x;
+        double[] z;
+        double[] y;
+        double[] out;
+        double[] residual;
+        double[] scale;
+        double[] jy;
+        double[] jx;
+        double[] lu;
+        int[] pivots;
+        double[] previous;
+        double[] step;
+        double[] stepLength;
+        double[] norm;
+        double[] referenceScale;
+        int[] iterations;
+        byte[] status;
+        double[] guesses;
+        double[] g;
+        double[] gyFloat;
+        double[] gz;
+        double[] gx;
 
-        private Workspace(Completion c) {
+        Workspace(Completion c) {
             this.evaluation = c.evaluator.newWorkspace();
             this.guessEvaluation = c.guessEvaluator == null ? null : c.guessEvaluator.newWorkspace();
             this.a = new double[Math.max(1, c.n * c.n)];
@@ -142,7 +143,7 @@ public final class Completion {
             this.vector = new double[Math.max(1, Math.max(c.n, c.nOut))];
         }
 
-        private void ensure(Completion c, int batch) {
+        void ensure(Completion c, int batch) {
             if (batch <= capacity) {
                 return;
             }
@@ -458,7 +459,7 @@ public final class Completion {
             this.constantPivot = null;
         }
         if (tier == Tier.CONSTANT_AFFINE) {
-            double[][] fold = foldConstantAffine(choice);
+            double[][] fold = ConstantAffineFold.fold(this, choice.jacobian);
             this.foldM = fold[0];
             this.foldN = fold[1];
             this.foldK = fold[2];
@@ -468,6 +469,7 @@ public final class Completion {
             this.foldK = null;
         }
         this.warnings = List.copyOf(notes);
+        this.solve = new CompletionSolve(this);
     }
 
     private Declaration guessFor(int output) {
@@ -539,75 +541,6 @@ public final class Completion {
             }
         }
         return true;
-    }
-
-    /**
-     * @return {M, N, k} with y_c = M z + N x + k, from C = A y_c + A_f z + A_x x + c0, solved stage by stage in the
-     *         triangular order so that coefficients that are structurally zero come out exactly zero
-     */
-    private double[][] foldConstantAffine(OutputChoice choice) {
-        double[] jx = new double[evaluator.inputNonzeros()];
-        double[] c0 = new double[n];
-        evaluator.evaluate(new double[nIn], new double[nOut], 1, c0, null, null, jx);
-        double[] ax = new double[n * nIn];
-        for (int e = 0; e < jx.length; e++) {
-            ax[inEntryLaw[e] * nIn + inEntryColumn[e]] = jx[e];
-        }
-        double[] m = new double[n * nFree];
-        double[] nn = new double[n * nIn];
-        double[] k = new double[n];
-        boolean[] known = new boolean[n];
-        int width = nFree + nIn + 1;
-        for (int g = 0; g < stages.stages.size(); g++) {
-            Stages.Stage st = stages.stages.get(g);
-            int size = st.size();
-            // right-hand sides: −(A_f, A_x, c0) of the stage's laws minus what earlier stages contribute
-            double[] rhs = new double[size * width];
-            for (int j = 0; j < size; j++) {
-                int law = st.laws()[j];
-                double[] row = new double[width];
-                for (int f = 0; f < nFree; f++) {
-                    row[f] = choice.jacobian[law * nOut + free[f]];
-                }
-                for (int x = 0; x < nIn; x++) {
-                    row[nFree + x] = ax[law * nIn + x];
-                }
-                row[width - 1] = c0[law];
-                for (int q = 0; q < n; q++) {
-                    double a = choice.jacobian[law * nOut + completed[q]];
-                    if (a == 0 || !known[q]) {
-                        continue;
-                    }
-                    for (int f = 0; f < nFree; f++) {
-                        row[f] += a * m[q * nFree + f];
-                    }
-                    for (int x = 0; x < nIn; x++) {
-                        row[nFree + x] += a * nn[q * nIn + x];
-                    }
-                    row[width - 1] += a * k[q];
-                }
-                for (int c = 0; c < width; c++) {
-                    rhs[c * size + j] = -row[c];
-                }
-            }
-            for (int c = 0; c < width; c++) {
-                DenseLu.solve(stageLu[g], size, stagePivot[g], rhs, c * size);
-            }
-            for (int j = 0; j < size; j++) {
-                int q = st.vars()[j];
-                for (int f = 0; f < nFree; f++) {
-                    m[q * nFree + f] = rhs[f * size + j];
-                }
-                for (int x = 0; x < nIn; x++) {
-                    nn[q * nIn + x] = rhs[(nFree + x) * size + j];
-                }
-                k[q] = rhs[(width - 1) * size + j];
-            }
-            for (int j = 0; j < size; j++) {
-                known[st.vars()[j]] = true;
-            }
-        }
-        return new double[][] {m, nn, k};
     }
 
     // ---- description -----------------------------------------------------------------------------------------
@@ -725,17 +658,17 @@ public final class Completion {
         }
         byte[] st = ws.status;
         Arrays.fill(st, 0, batch, SampleStatus.OK);
-        markNonFinite(x, z, batch, st);
+        solve.markNonFinite(x, z, batch, st);
         switch (tier) {
             case CONSTANT_AFFINE:
-                forwardConstantAffine(x, z, batch, full);
-                refineAll(x, batch, full, st, ws);
+                solve.forwardConstantAffine(x, z, batch, full);
+                solve.refineAll(x, batch, full, st, ws);
                 break;
             case AFFINE:
-                forwardAffine(x, batch, full, st, ws);
+                solve.forwardAffine(x, batch, full, st, ws);
                 break;
             default:
-                forwardNewton(x, batch, full, st, ws);
+                solve.forwardNewton(x, batch, full, st, ws);
                 break;
         }
         finish(batch, full, st, y, status);
@@ -760,299 +693,6 @@ public final class Completion {
         forward(ws.x, ws.z, batch, ws.out, status, ws);
         for (int i = 0; i < batch * nOut; i++) {
             y[i] = (float) ws.out[i];
-        }
-    }
-
-    private void forwardConstantAffine(double[] x, double[] z, int batch, double[] full) {
-        for (int s = 0; s < batch; s++) {
-            for (int r = 0; r < n; r++) {
-                double v = foldK[r];
-                for (int f = 0; f < nFree; f++) {
-                    v += foldM[r * nFree + f] * z[s * nFree + f];
-                }
-                for (int i = 0; i < nIn; i++) {
-                    v += foldN[r * nIn + i] * x[s * nIn + i];
-                }
-                full[s * nOut + completed[r]] = v;
-            }
-        }
-    }
-
-    private void forwardAffine(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
-        // C is affine in y_c: per stage, C(y_stage = 0) + B y_stage = 0, so y_stage = −B⁻¹ C(0); then one
-        // refinement with the same B
-        for (int g = 0; g < stages.stages.size(); g++) {
-            Stages.Stage stage = stages.stages.get(g);
-            for (int s = 0; s < batch; s++) {
-                for (int q : stage.vars()) {
-                    full[s * nOut + completed[q]] = 0;
-                }
-            }
-            if (stageLu[g] != null) {
-                evaluator.residuals(x, full, batch, ws.residual, null, ws.evaluation);
-            } else {
-                evaluator.evaluate(x, full, batch, ws.residual, null, ws.jy, null, ws.evaluation);
-            }
-            for (int s = 0; s < batch; s++) {
-                if (st[s] != SampleStatus.OK) {
-                    continue;
-                }
-                if (!factorSample(s, g, ws)) {
-                    st[s] = SampleStatus.SINGULAR;
-                    continue;
-                }
-                applyStep(s, g, 1.0, full, ws);
-            }
-        }
-        // every stage's block factors are kept (at their own offsets), so the refinement can reuse them
-        refineAll(x, batch, full, st, ws);
-    }
-
-    /**
-     * Checks every sample once; only when some sample is above rounding level, refines stage by stage (one
-     * correction with its block where its laws are not yet within the bound) and checks again.
-     */
-    private void refineAll(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
-        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
-        boolean needed = false;
-        for (int s = 0; s < batch && !needed; s++) {
-            needed = st[s] == SampleStatus.OK && !converged(s, ws, null);
-        }
-        if (!needed) {
-            return;
-        }
-        for (int g = 0; g < stages.stages.size(); g++) {
-            refineStage(x, batch, full, st, ws, g);
-        }
-        verify(x, batch, full, st, ws);
-    }
-
-    private void refineStage(double[] x, int batch, double[] full, byte[] st, Workspace ws, int g) {
-        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
-        Stages.Stage stage = stages.stages.get(g);
-        for (int s = 0; s < batch; s++) {
-            if (st[s] == SampleStatus.OK && !converged(s, ws, stage.laws())) {
-                // the block's factors from the solve are still in place (or constant)
-                applyStep(s, g, 1.0, full, ws);
-            }
-        }
-    }
-
-    /** y_stage ← y_stage − t·B⁻¹ r_stage for sample s, with the stage block's factors in place. */
-    private void applyStep(int s, int g, double t, double[] full, Workspace ws) {
-        Stages.Stage stage = stages.stages.get(g);
-        int m = stage.size();
-        double[] v = ws.vector;
-        for (int j = 0; j < m; j++) {
-            v[j] = -ws.residual[s * n + stage.laws()[j]];
-        }
-        if (stageLu[g] != null) {
-            DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
-        } else {
-            DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n + stages.offsets[g], s * n + pivotOffset(g));
-        }
-        for (int j = 0; j < m; j++) {
-            full[s * nOut + completed[stage.vars()[j]]] += t * v[j];
-        }
-    }
-
-    /** Builds the stage block of sample s from the evaluator's dC/dy entries and factors it into the workspace. */
-    private boolean factorSample(int s, int g, Workspace ws) {
-        if (stageLu[g] != null) {
-            return true;
-        }
-        Stages.Stage stage = stages.stages.get(g);
-        int m = stage.size();
-        int nnz = evaluator.outputNonzeros();
-        int base = s * n * n + stages.offsets[g];
-        Arrays.fill(ws.lu, base, base + m * m, 0.0);
-        int[] entries = stage.entries();
-        for (int k = 0; k < entries.length; k++) {
-            ws.lu[base + stage.rows()[k] * m + stage.cols()[k]] = ws.jy[s * nnz + entries[k]];
-        }
-        return DenseLu.factor(ws.lu, m, ws.pivots, base, s * n + pivotOffset(g));
-    }
-
-    /** @return where stage g's pivots start within a sample's n pivot slots (the stages' sizes add up to n) */
-    private int pivotOffset(int g) {
-        int at = 0;
-        for (int h = 0; h < g; h++) {
-            at += stages.stages.get(h).size();
-        }
-        return at;
-    }
-
-    /** Builds the whole block A = ∂C/∂y_c of sample s (for gradients) and factors it into the workspace. */
-    private boolean factorWhole(int s, Workspace ws) {
-        if (constantLu != null) {
-            return true;
-        }
-        int nnz = evaluator.outputNonzeros();
-        int base = s * n * n;
-        Arrays.fill(ws.lu, base, base + n * n, 0.0);
-        for (int e = 0; e < nnz; e++) {
-            int k = entryRole[e];
-            if (k >= 0) {
-                ws.lu[base + entryLaw[e] * n + k] = ws.jy[s * nnz + e];
-            }
-        }
-        return DenseLu.factor(ws.lu, n, ws.pivots, base, s * n);
-    }
-
-    /** Final check of the documented bound: a sample that misses it is not converged. */
-    private void verify(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
-        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
-        for (int s = 0; s < batch; s++) {
-            if (st[s] == SampleStatus.OK && !converged(s, ws, null)) {
-                st[s] = SampleStatus.NOT_CONVERGED;
-            }
-        }
-    }
-
-    /** @return whether the given laws (all when null) of sample s are within the documented bound */
-    private boolean converged(int s, Workspace ws, int[] subset) {
-        int count = subset == null ? n : subset.length;
-        for (int j = 0; j < count; j++) {
-            int i = subset == null ? j : subset[j];
-            double r = ws.residual[s * n + i];
-            if (!(Math.abs(r) <= boundFactor[i] * EPS * ws.scale[s * n + i])) {
-                return false;
-            }
-        }
-        return true;
-    }
-
-    private void forwardNewton(double[] x, int batch, double[] full, byte[] st, Workspace ws) {
-        // starting values: guesses where the law text gives them, the generic start values elsewhere
-        for (int s = 0; s < batch; s++) {
-            for (int k = 0; k < n; k++) {
-                full[s * nOut + completed[k]] = startValue[k];
-            }
-        }
-        if (guessEvaluator != null) {
-            guessEvaluator.residuals(x, full, batch, ws.guesses, null, ws.guessEvaluation);
-            int g = guessTarget.length;
-            for (int s = 0; s < batch; s++) {
-                for (int j = 0; j < g; j++) {
-                    double v = ws.guesses[s * g + j];
-                    full[s * nOut + completed[guessTarget[j]]] = Double.isFinite(v) ? v : startValue[guessTarget[j]];
-                }
-            }
-        }
-        for (int g = 0; g < stages.stages.size(); g++) {
-            newtonStage(x, batch, full, st, ws, g);
-        }
-        verify(x, batch, full, st, ws);
-    }
-
-    /**
-     * Damped Newton on one stage for every sample at once: each batch evaluation serves all samples still
-     * iterating; a step that does not reduce the scaled residual norm is halved (down to 1/1024).
-     */
-    private void newtonStage(double[] x, int batch, double[] full, byte[] st, Workspace ws, int g) {
-        Stages.Stage stage = stages.stages.get(g);
-        int[] stageLaws = stage.laws();
-        int m = stage.size();
-        double[] norm = ws.norm;
-        double[] length = ws.stepLength;
-        Arrays.fill(norm, 0, batch, Double.POSITIVE_INFINITY);
-        Arrays.fill(length, 0, batch, 0.0);
-        Arrays.fill(ws.iterations, 0, batch, 0);
-        int remaining = 0;
-        for (int s = 0; s < batch; s++) {
-            if (st[s] == SampleStatus.OK) {
-                st[s] = SampleStatus.NOT_CONVERGED;
-                remaining++;
-            }
-        }
-        for (int iteration = 0; iteration <= 4 * maxIterations && remaining > 0; iteration++) {
-            evaluator.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, null, ws.evaluation);
-            remaining = 0;
-            for (int s = 0; s < batch; s++) {
-                if (st[s] != SampleStatus.NOT_CONVERGED || length[s] < 0) {
-                    continue;
-                }
-                if (converged(s, ws, stageLaws)) {
-                    st[s] = SampleStatus.OK;
-                    continue;
-                }
-                // judged in the scales of the last accepted point: the scale moves with the iterate, and a norm
-                // divided by the current scale can stay at 1 while the residual itself falls
-                double nrm = scaledNorm(s, ws, stageLaws, true);
-                double t = length[s];
-                if (t > 0 && !(nrm < (1 - 1e-4 * t) * norm[s])) {
-                    // backtrack: halve the step from the previous point
-                    if (t < 1.0 / 1024) {
-                        length[s] = -1;
-                        continue;
-                    }
-                    t /= 2;
-                    length[s] = t;
-                    for (int j = 0; j < m; j++) {
-                        int o = completed[stage.vars()[j]];
-                        full[s * nOut + o] = ws.previous[s * n + j] + t * ws.step[s * n + j];
-                    }
-                    remaining++;
-                    continue;
-                }
-                if (ws.iterations[s] >= maxIterations) {
-                    length[s] = -1;
-                    continue;
-                }
-                for (int i : stageLaws) {
-                    ws.referenceScale[s * n + i] = ws.scale[s * n + i] > 0 ? ws.scale[s * n + i] : 1;
-                }
-                norm[s] = scaledNorm(s, ws, stageLaws, true);
-                if (!factorSample(s, g, ws)) {
-                    // singular where Newton starts: the start is at fault; later, Newton has broken down
-                    st[s] = ws.iterations[s] == 0 ? SampleStatus.SINGULAR : SampleStatus.NOT_CONVERGED;
-                    continue;
-                }
-                double[] v = ws.vector;
-                for (int j = 0; j < m; j++) {
-                    v[j] = -ws.residual[s * n + stageLaws[j]];
-                }
-                if (stageLu[g] != null) {
-                    DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
-                } else {
-                    DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n + stages.offsets[g], s * n + pivotOffset(g));
-                }
-                for (int j = 0; j < m; j++) {
-                    int o = completed[stage.vars()[j]];
-                    ws.previous[s * n + j] = full[s * nOut + o];
-                    ws.step[s * n + j] = v[j];
-                    full[s * nOut + o] += v[j];
-                }
-                length[s] = 1;
-                ws.iterations[s]++;
-                remaining++;
-            }
-        }
-    }
-
-    private double scaledNorm(int s, Workspace ws, int[] subset, boolean reference) {
-        double sum = 0;
-        for (int i : subset) {
-            double sc = reference ? ws.referenceScale[s * n + i] : ws.scale[s * n + i];
-            double r = ws.residual[s * n + i] / (sc > 0 ? sc : 1);
-            sum += r * r;
-        }
-        return Math.sqrt(sum);
-    }
-
-
-    private void markNonFinite(double[] x, double[] z, int batch, byte[] st) {
-        for (int s = 0; s < batch; s++) {
-            boolean bad = false;
-            for (int i = 0; i < nIn && !bad; i++) {
-                bad = !Double.isFinite(x[s * nIn + i]);
-            }
-            for (int f = 0; f < nFree && !bad; f++) {
-                bad = !Double.isFinite(z[s * nFree + f]);
-            }
-            if (bad) {
-                st[s] = SampleStatus.NOT_FINITE;
-            }
         }
     }
 
@@ -1148,74 +788,10 @@ public final class Completion {
                 g[s * nOut + o] = gy[s * nOut + c];
             }
         }
-        if (tier == Tier.CONSTANT_AFFINE) {
-            for (int s = 0; s < batch; s++) {
-                if (!finiteRow(full, g, s)) {
-                    nanGradients(s, gz, gx);
-                    continue;
-                }
-                for (int f = 0; f < nFree; f++) {
-                    double v = g[s * nOut + free[f]];
-                    for (int r = 0; r < n; r++) {
-                        v += foldM[r * nFree + f] * g[s * nOut + completed[r]];
-                    }
-                    gz[s * nFree + f] = v;
-                }
-                if (gx != null) {
-                    for (int i = 0; i < nIn; i++) {
-                        double v = 0;
-                        for (int r = 0; r < n; r++) {
-                            v += foldN[r * nIn + i] * g[s * nOut + completed[r]];
-                        }
-                        gx[s * nIn + i] = v;
-                    }
-                }
-            }
-            return;
-        }
-        evaluator.evaluate(x, full, batch, null, null, ws.jy, gx == null ? null : ws.jx, ws.evaluation);
-        int nnz = evaluator.outputNonzeros();
-        int nnzX = evaluator.inputNonzeros();
-        double[] lambda = ws.vector;
-        for (int s = 0; s < batch; s++) {
-            if (!finiteRow(full, g, s)) {
-                // a masked sample (NaN outputs) has no gradient either
-                nanGradients(s, gz, gx);
-                continue;
-            }
-            if (!factorWhole(s, ws)) {
-                if (policy == OnBadSample.THROW) {
-                    throw failure(s, SampleStatus.SINGULAR);
-                }
-                Arrays.fill(gz, s * nFree, (s + 1) * nFree, Double.NaN);
-                if (gx != null) {
-                    Arrays.fill(gx, s * nIn, (s + 1) * nIn, Double.NaN);
-                }
-                continue;
-            }
-            for (int k = 0; k < n; k++) {
-                lambda[k] = g[s * nOut + completed[k]];
-            }
-            if (constantLu != null) {
-                DenseLu.solveTransposed(constantLu, n, constantPivot, lambda, 0);
-            } else {
-                DenseLu.solveTransposed(ws.lu, n, ws.pivots, lambda, 0, s * n * n, s * n);
-            }
-            for (int f = 0; f < nFree; f++) {
-                gz[s * nFree + f] = g[s * nOut + free[f]];
-            }
-            for (int e = 0; e < nnz; e++) {
-                int r = entryRole[e];
-                if (r < 0) {
-                    gz[s * nFree + (-r - 1)] -= ws.jy[s * nnz + e] * lambda[entryLaw[e]];
-                }
-            }
-            if (gx != null) {
-                Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
-                for (int e = 0; e < nnzX; e++) {
-                    gx[s * nIn + inEntryColumn[e]] -= ws.jx[s * nnzX + e] * lambda[inEntryLaw[e]];
-                }
-            }
+        int singular = solve.backward(tier == Tier.CONSTANT_AFFINE, policy == OnBadSample.THROW, x, batch, full, g, gz,
+                gx, ws);
+        if (singular >= 0) {
+            throw failure(singular, SampleStatus.SINGULAR);
         }
     }
 
@@ -1285,22 +861,6 @@ public final class Completion {
     }
 
     // ---- helpers ---------------------------------------------------------------------------------------------
-
-    private boolean finiteRow(double[] full, double[] g, int s) {
-        for (int o = 0; o < nOut; o++) {
-            if (!Double.isFinite(full[s * nOut + o]) || !Double.isFinite(g[s * nOut + o])) {
-                return false;
-            }
-        }
-        return true;
-    }
-
-    private void nanGradients(int s, double[] gz, double[] gx) {
-        Arrays.fill(gz, s * nFree, (s + 1) * nFree, Double.NaN);
-        if (gx != null) {
-            Arrays.fill(gx, s * nIn, (s + 1) * nIn, Double.NaN);
-        }
-    }
 
     /** @return the declared output index of column {@code c} in this completion's layout */
     private int outputAt(int c) {

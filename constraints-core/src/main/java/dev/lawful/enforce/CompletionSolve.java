@@ -1,0 +1,456 @@
+package dev.lawful.enforce;
+
+import dev.lawful.algebra.LawEvaluator;
+import java.util.Arrays;
+
+/**
+ * The batch solving behind {@link Completion}: the constant-affine fold, the staged affine solve, damped Newton per
+ * stage, the refinement and the final check of the documented bound, each run for a whole batch so one evaluator
+ * pass serves every sample. Holds only immutable data of its completion; all work arrays are in the caller's
+ * {@link Completion.Workspace}.
+ */
+final class CompletionSolve {
+    private static final double EPS = 0x1p-53;
+
+    private final int n;
+    private final int nIn;
+    private final int nOut;
+    private final int nFree;
+    private final int[] completed;
+    private final LawEvaluator evaluator;
+    private final int[] boundFactor;
+    private final int[] entryLaw;
+    private final int[] entryRole;
+    private final double[] foldM;
+    private final double[] foldN;
+    private final double[] foldK;
+    private final Stages stages;
+    private final double[][] stageLu;
+    private final int[][] stagePivot;
+    private final double[] constantLu;
+    private final int[] constantPivot;
+    private final int[] free;
+    private final int[] inEntryLaw;
+    private final int[] inEntryColumn;
+    private final LawEvaluator guessEvaluator;
+    private final int[] guessTarget;
+    private final double[] startValue;
+    private final int maxIterations;
+
+    CompletionSolve(Completion c) {
+        this.n = c.n;
+        this.nIn = c.nIn;
+        this.nOut = c.nOut;
+        this.nFree = c.nFree;
+        this.completed = c.completed;
+        this.evaluator = c.evaluator;
+        this.boundFactor = c.boundFactor;
+        this.entryLaw = c.entryLaw;
+        this.entryRole = c.entryRole;
+        this.foldM = c.foldM;
+        this.foldN = c.foldN;
+        this.foldK = c.foldK;
+        this.stages = c.stages;
+        this.stageLu = c.stageLu;
+        this.stagePivot = c.stagePivot;
+        this.constantLu = c.constantLu;
+        this.constantPivot = c.constantPivot;
+        this.free = c.free;
+        this.inEntryLaw = c.inEntryLaw;
+        this.inEntryColumn = c.inEntryColumn;
+        this.guessEvaluator = c.guessEvaluator;
+        this.guessTarget = c.guessTarget;
+        this.startValue = c.startValue;
+        this.maxIterations = c.maxIterations;
+    }
+
+    void forwardConstantAffine(double[] x, double[] z, int batch, double[] full) {
+        for (int s = 0; s < batch; s++) {
+            for (int r = 0; r < n; r++) {
+                double v = foldK[r];
+                for (int f = 0; f < nFree; f++) {
+                    v += foldM[r * nFree + f] * z[s * nFree + f];
+                }
+                for (int i = 0; i < nIn; i++) {
+                    v += foldN[r * nIn + i] * x[s * nIn + i];
+                }
+                full[s * nOut + completed[r]] = v;
+            }
+        }
+    }
+
+    void forwardAffine(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws) {
+        // C is affine in y_c: per stage, C(y_stage = 0) + B y_stage = 0, so y_stage = −B⁻¹ C(0); then one
+        // refinement with the same B
+        for (int g = 0; g < stages.stages.size(); g++) {
+            Stages.Stage stage = stages.stages.get(g);
+            for (int s = 0; s < batch; s++) {
+                for (int q : stage.vars()) {
+                    full[s * nOut + completed[q]] = 0;
+                }
+            }
+            if (stageLu[g] != null) {
+                evaluator.residuals(x, full, batch, ws.residual, null, ws.evaluation);
+            } else {
+                evaluator.evaluate(x, full, batch, ws.residual, null, ws.jy, null, ws.evaluation);
+            }
+            for (int s = 0; s < batch; s++) {
+                if (st[s] != SampleStatus.OK) {
+                    continue;
+                }
+                if (!factorSample(s, g, ws)) {
+                    st[s] = SampleStatus.SINGULAR;
+                    continue;
+                }
+                applyStep(s, g, 1.0, full, ws);
+            }
+        }
+        // every stage's block factors are kept (at their own offsets), so the refinement can reuse them
+        refineAll(x, batch, full, st, ws);
+    }
+
+    /**
+     * Checks every sample once; only when some sample is above rounding level, refines stage by stage (one
+     * correction with its block where its laws are not yet within the bound) and checks again.
+     */
+    void refineAll(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws) {
+        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
+        boolean needed = false;
+        for (int s = 0; s < batch && !needed; s++) {
+            needed = st[s] == SampleStatus.OK && !converged(s, ws, null);
+        }
+        if (!needed) {
+            return;
+        }
+        for (int g = 0; g < stages.stages.size(); g++) {
+            refineStage(x, batch, full, st, ws, g);
+        }
+        verify(x, batch, full, st, ws);
+    }
+
+    void refineStage(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws, int g) {
+        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
+        Stages.Stage stage = stages.stages.get(g);
+        for (int s = 0; s < batch; s++) {
+            if (st[s] == SampleStatus.OK && !converged(s, ws, stage.laws())) {
+                // the block's factors from the solve are still in place (or constant)
+                applyStep(s, g, 1.0, full, ws);
+            }
+        }
+    }
+
+    /** y_stage ← y_stage − t·B⁻¹ r_stage for sample s, with the stage block's factors in place. */
+    void applyStep(int s, int g, double t, double[] full, Completion.Workspace ws) {
+        Stages.Stage stage = stages.stages.get(g);
+        int m = stage.size();
+        double[] v = ws.vector;
+        for (int j = 0; j < m; j++) {
+            v[j] = -ws.residual[s * n + stage.laws()[j]];
+        }
+        if (stageLu[g] != null) {
+            DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
+        } else {
+            DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n + stages.offsets[g], s * n + pivotOffset(g));
+        }
+        for (int j = 0; j < m; j++) {
+            full[s * nOut + completed[stage.vars()[j]]] += t * v[j];
+        }
+    }
+
+    /** Builds the stage block of sample s from the evaluator's dC/dy entries and factors it into the workspace. */
+    boolean factorSample(int s, int g, Completion.Workspace ws) {
+        if (stageLu[g] != null) {
+            return true;
+        }
+        Stages.Stage stage = stages.stages.get(g);
+        int m = stage.size();
+        int nnz = evaluator.outputNonzeros();
+        int base = s * n * n + stages.offsets[g];
+        Arrays.fill(ws.lu, base, base + m * m, 0.0);
+        int[] entries = stage.entries();
+        for (int k = 0; k < entries.length; k++) {
+            ws.lu[base + stage.rows()[k] * m + stage.cols()[k]] = ws.jy[s * nnz + entries[k]];
+        }
+        return DenseLu.factor(ws.lu, m, ws.pivots, base, s * n + pivotOffset(g));
+    }
+
+    /** @return where stage g's pivots start within a sample's n pivot slots (the stages' sizes add up to n) */
+    int pivotOffset(int g) {
+        int at = 0;
+        for (int h = 0; h < g; h++) {
+            at += stages.stages.get(h).size();
+        }
+        return at;
+    }
+
+    /** Builds the whole block A = ∂C/∂y_c of sample s (for gradients) and factors it into the workspace. */
+    boolean factorWhole(int s, Completion.Workspace ws) {
+        if (constantLu != null) {
+            return true;
+        }
+        int nnz = evaluator.outputNonzeros();
+        int base = s * n * n;
+        Arrays.fill(ws.lu, base, base + n * n, 0.0);
+        for (int e = 0; e < nnz; e++) {
+            int k = entryRole[e];
+            if (k >= 0) {
+                ws.lu[base + entryLaw[e] * n + k] = ws.jy[s * nnz + e];
+            }
+        }
+        return DenseLu.factor(ws.lu, n, ws.pivots, base, s * n);
+    }
+
+    /** Final check of the documented bound: a sample that misses it is not converged. */
+    void verify(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws) {
+        evaluator.residuals(x, full, batch, ws.residual, ws.scale, ws.evaluation);
+        for (int s = 0; s < batch; s++) {
+            if (st[s] == SampleStatus.OK && !converged(s, ws, null)) {
+                st[s] = SampleStatus.NOT_CONVERGED;
+            }
+        }
+    }
+
+    /** @return whether the given laws (all when null) of sample s are within the documented bound */
+    boolean converged(int s, Completion.Workspace ws, int[] subset) {
+        int count = subset == null ? n : subset.length;
+        for (int j = 0; j < count; j++) {
+            int i = subset == null ? j : subset[j];
+            double r = ws.residual[s * n + i];
+            if (!(Math.abs(r) <= boundFactor[i] * EPS * ws.scale[s * n + i])) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    void forwardNewton(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws) {
+        // starting values: guesses where the law text gives them, the generic start values elsewhere
+        for (int s = 0; s < batch; s++) {
+            for (int k = 0; k < n; k++) {
+                full[s * nOut + completed[k]] = startValue[k];
+            }
+        }
+        if (guessEvaluator != null) {
+            guessEvaluator.residuals(x, full, batch, ws.guesses, null, ws.guessEvaluation);
+            int g = guessTarget.length;
+            for (int s = 0; s < batch; s++) {
+                for (int j = 0; j < g; j++) {
+                    double v = ws.guesses[s * g + j];
+                    full[s * nOut + completed[guessTarget[j]]] = Double.isFinite(v) ? v : startValue[guessTarget[j]];
+                }
+            }
+        }
+        for (int g = 0; g < stages.stages.size(); g++) {
+            newtonStage(x, batch, full, st, ws, g);
+        }
+        verify(x, batch, full, st, ws);
+    }
+
+    /**
+     * Damped Newton on one stage for every sample at once: each batch evaluation serves all samples still
+     * iterating; a step that does not reduce the scaled residual norm is halved (down to 1/1024).
+     */
+    void newtonStage(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws, int g) {
+        Stages.Stage stage = stages.stages.get(g);
+        int[] stageLaws = stage.laws();
+        int m = stage.size();
+        double[] norm = ws.norm;
+        double[] length = ws.stepLength;
+        Arrays.fill(norm, 0, batch, Double.POSITIVE_INFINITY);
+        Arrays.fill(length, 0, batch, 0.0);
+        Arrays.fill(ws.iterations, 0, batch, 0);
+        int remaining = 0;
+        for (int s = 0; s < batch; s++) {
+            if (st[s] == SampleStatus.OK) {
+                st[s] = SampleStatus.NOT_CONVERGED;
+                remaining++;
+            }
+        }
+        for (int iteration = 0; iteration <= 4 * maxIterations && remaining > 0; iteration++) {
+            evaluator.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, null, ws.evaluation);
+            remaining = 0;
+            for (int s = 0; s < batch; s++) {
+                if (st[s] != SampleStatus.NOT_CONVERGED || length[s] < 0) {
+                    continue;
+                }
+                if (converged(s, ws, stageLaws)) {
+                    st[s] = SampleStatus.OK;
+                    continue;
+                }
+                // judged in the scales of the last accepted point: the scale moves with the iterate, and a norm
+                // divided by the current scale can stay at 1 while the residual itself falls
+                double nrm = scaledNorm(s, ws, stageLaws, true);
+                double t = length[s];
+                if (t > 0 && !(nrm < (1 - 1e-4 * t) * norm[s])) {
+                    // backtrack: halve the step from the previous point
+                    if (t < 1.0 / 1024) {
+                        length[s] = -1;
+                        continue;
+                    }
+                    t /= 2;
+                    length[s] = t;
+                    for (int j = 0; j < m; j++) {
+                        int o = completed[stage.vars()[j]];
+                        full[s * nOut + o] = ws.previous[s * n + j] + t * ws.step[s * n + j];
+                    }
+                    remaining++;
+                    continue;
+                }
+                if (ws.iterations[s] >= maxIterations) {
+                    length[s] = -1;
+                    continue;
+                }
+                for (int i : stageLaws) {
+                    ws.referenceScale[s * n + i] = ws.scale[s * n + i] > 0 ? ws.scale[s * n + i] : 1;
+                }
+                norm[s] = scaledNorm(s, ws, stageLaws, true);
+                if (!factorSample(s, g, ws)) {
+                    // singular where Newton starts: the start is at fault; later, Newton has broken down
+                    st[s] = ws.iterations[s] == 0 ? SampleStatus.SINGULAR : SampleStatus.NOT_CONVERGED;
+                    continue;
+                }
+                double[] v = ws.vector;
+                for (int j = 0; j < m; j++) {
+                    v[j] = -ws.residual[s * n + stageLaws[j]];
+                }
+                if (stageLu[g] != null) {
+                    DenseLu.solve(stageLu[g], m, stagePivot[g], v, 0);
+                } else {
+                    DenseLu.solve(ws.lu, m, ws.pivots, v, 0, s * n * n + stages.offsets[g], s * n + pivotOffset(g));
+                }
+                for (int j = 0; j < m; j++) {
+                    int o = completed[stage.vars()[j]];
+                    ws.previous[s * n + j] = full[s * nOut + o];
+                    ws.step[s * n + j] = v[j];
+                    full[s * nOut + o] += v[j];
+                }
+                length[s] = 1;
+                ws.iterations[s]++;
+                remaining++;
+            }
+        }
+    }
+
+    double scaledNorm(int s, Completion.Workspace ws, int[] subset, boolean reference) {
+        double sum = 0;
+        for (int i : subset) {
+            double sc = reference ? ws.referenceScale[s * n + i] : ws.scale[s * n + i];
+            double r = ws.residual[s * n + i] / (sc > 0 ? sc : 1);
+            sum += r * r;
+        }
+        return Math.sqrt(sum);
+    }
+
+
+    void markNonFinite(double[] x, double[] z, int batch, byte[] st) {
+        for (int s = 0; s < batch; s++) {
+            boolean bad = false;
+            for (int i = 0; i < nIn && !bad; i++) {
+                bad = !Double.isFinite(x[s * nIn + i]);
+            }
+            for (int f = 0; f < nFree && !bad; f++) {
+                bad = !Double.isFinite(z[s * nFree + f]);
+            }
+            if (bad) {
+                st[s] = SampleStatus.NOT_FINITE;
+            }
+        }
+    }
+
+    /**
+     * The vector-Jacobian product at the solution: for the constant-affine tier ḡ_z = ḡ_f + Mᵀḡ_c, ḡ_x = Nᵀḡ_c;
+     * otherwise Aᵀλ = ḡ_c, ḡ_z = ḡ_f − (∂C/∂z)ᵀλ, ḡ_x = −(∂C/∂x)ᵀλ. {@code full} and {@code g} hold the outputs
+     * and their gradients in declared order; rows with a non-finite value get NaN gradients.
+     *
+     * @return the first sample whose A is singular when {@code throwOnSingular}, else −1 (singular rows are NaN)
+     */
+    int backward(boolean constantAffine, boolean throwOnSingular, double[] x, int batch, double[] full, double[] g,
+                 double[] gz, double[] gx, Completion.Workspace ws) {
+        if (constantAffine) {
+            for (int s = 0; s < batch; s++) {
+                if (!finiteRow(full, g, s)) {
+                    nanGradients(s, gz, gx);
+                    continue;
+                }
+                for (int f = 0; f < nFree; f++) {
+                    double v = g[s * nOut + free[f]];
+                    for (int r = 0; r < n; r++) {
+                        v += foldM[r * nFree + f] * g[s * nOut + completed[r]];
+                    }
+                    gz[s * nFree + f] = v;
+                }
+                if (gx != null) {
+                    for (int i = 0; i < nIn; i++) {
+                        double v = 0;
+                        for (int r = 0; r < n; r++) {
+                            v += foldN[r * nIn + i] * g[s * nOut + completed[r]];
+                        }
+                        gx[s * nIn + i] = v;
+                    }
+                }
+            }
+            return -1;
+        }
+        evaluator.evaluate(x, full, batch, null, null, ws.jy, gx == null ? null : ws.jx, ws.evaluation);
+        int nnz = evaluator.outputNonzeros();
+        int nnzX = evaluator.inputNonzeros();
+        double[] lambda = ws.vector;
+        for (int s = 0; s < batch; s++) {
+            if (!finiteRow(full, g, s)) {
+                // a masked sample (NaN outputs) has no gradient either
+                nanGradients(s, gz, gx);
+                continue;
+            }
+            if (!factorWhole(s, ws)) {
+                if (throwOnSingular) {
+                    return s;
+                }
+                Arrays.fill(gz, s * nFree, (s + 1) * nFree, Double.NaN);
+                if (gx != null) {
+                    Arrays.fill(gx, s * nIn, (s + 1) * nIn, Double.NaN);
+                }
+                continue;
+            }
+            for (int k = 0; k < n; k++) {
+                lambda[k] = g[s * nOut + completed[k]];
+            }
+            if (constantLu != null) {
+                DenseLu.solveTransposed(constantLu, n, constantPivot, lambda, 0);
+            } else {
+                DenseLu.solveTransposed(ws.lu, n, ws.pivots, lambda, 0, s * n * n, s * n);
+            }
+            for (int f = 0; f < nFree; f++) {
+                gz[s * nFree + f] = g[s * nOut + free[f]];
+            }
+            for (int e = 0; e < nnz; e++) {
+                int r = entryRole[e];
+                if (r < 0) {
+                    gz[s * nFree + (-r - 1)] -= ws.jy[s * nnz + e] * lambda[entryLaw[e]];
+                }
+            }
+            if (gx != null) {
+                Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
+                for (int e = 0; e < nnzX; e++) {
+                    gx[s * nIn + inEntryColumn[e]] -= ws.jx[s * nnzX + e] * lambda[inEntryLaw[e]];
+                }
+            }
+        }
+        return -1;
+    }
+
+    private boolean finiteRow(double[] full, double[] g, int s) {
+        for (int o = 0; o < nOut; o++) {
+            if (!Double.isFinite(full[s * nOut + o]) || !Double.isFinite(g[s * nOut + o])) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    private void nanGradients(int s, double[] gz, double[] gx) {
+        Arrays.fill(gz, s * nFree, (s + 1) * nFree, Double.NaN);
+        if (gx != null) {
+            Arrays.fill(gx, s * nIn, (s + 1) * nIn, Double.NaN);
+        }
+    }
+}
