@@ -11,6 +11,8 @@
  *       law vertex and loss.</li>
  *   <li>{@link dev.lawful.dl4j.LawPenaltyLoss}: MSE plus weighted squared law residuals, the soft baseline.</li>
  *   <li>{@link dev.lawful.dl4j.LawSpec}: the law text, stored readably in the saved configuration.</li>
+ *   <li>{@link dev.lawful.dl4j.LawDeployment}: finds the law specs of a network or saved model, so a JVM host
+ *       can run the completion with the core alone.</li>
  * </ul>
  */
 package dev.lawful.dl4j;
