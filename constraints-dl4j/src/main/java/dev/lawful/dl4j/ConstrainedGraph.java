@@ -12,6 +12,7 @@ import org.deeplearning4j.nn.graph.ComputationGraph;
 import org.deeplearning4j.nn.weights.WeightInit;
 import org.nd4j.linalg.activations.Activation;
 import org.nd4j.linalg.api.buffer.DataType;
+import org.nd4j.linalg.dataset.api.preprocessor.DataNormalization;
 import org.nd4j.linalg.learning.config.Adam;
 import org.nd4j.linalg.learning.config.IUpdater;
 import org.nd4j.linalg.lossfunctions.ILossFunction;
@@ -25,6 +26,11 @@ import org.nd4j.linalg.lossfunctions.impl.LossMSE;
  * </pre>
  * The network input is the law set's inputs in declared order and units; the labels are all outputs in declared
  * order. {@code graph.output(x)[0]} then gives outputs for which every law holds.
+ *
+ * <p>With {@link Builder#normalizedWith(DataNormalization)} the graph trains on normalised features and labels (the
+ * normalizer's statistics are folded into the law vertex, see {@link LawVertex#normalizedWith}): its input is then
+ * the normalised law inputs, its output the normalised outputs, and the laws hold on the outputs mapped back to
+ * physical units ({@code LawVertex.getOutputScaling().toPhysical}, or {@code normalizer.revertLabels}).
  */
 public final class ConstrainedGraph {
     /** Name of the network input (the law inputs x). */
@@ -57,6 +63,7 @@ public final class ConstrainedGraph {
         private ILossFunction loss = new LossMSE();
         private long seed = 12345;
         private WorkspaceMode workspaceMode = WorkspaceMode.ENABLED;
+        private LawVertex normalizedVertex;
 
         private Builder(LawSpec spec) {
             this.spec = Objects.requireNonNull(spec, "spec");
@@ -110,6 +117,21 @@ public final class ConstrainedGraph {
         }
 
         /**
+         * Trains on data normalised by {@code normalizer} while the laws hold in physical units: folds its feature and
+         * label statistics into the law vertex ({@link LawVertex#normalizedWith}). Fit it first with
+         * {@code normalizer.fitLabel(true); normalizer.fit(iterator);} and normalise the training data with it.
+         *
+         * @param normalizer a fitted {@code NormalizerStandardize} or {@code NormalizerMinMaxScaler} with labels
+         * @return this builder
+         * @throws IllegalArgumentException when the normalizer does not match the law set (the message says what to
+         *         change)
+         */
+        public Builder normalizedWith(DataNormalization normalizer) {
+            this.normalizedVertex = new LawVertex(spec).normalizedWith(normalizer);
+            return this;
+        }
+
+        /**
          * @return the configuration
          * @throws IllegalArgumentException when the law set declares no inputs (use {@link LawLayer})
          * @throws dev.lawful.algebra.LawException when the laws cannot be completed
@@ -141,7 +163,8 @@ public final class ConstrainedGraph {
             }
             g.addLayer(HEAD, new DenseLayer.Builder().nIn(width).nOut(c.freeWidth()).activation(Activation.IDENTITY)
                     .build(), previous);
-            g.addVertex(LAWS, new LawVertex(spec), INPUT, HEAD);
+            LawVertex vertex = normalizedVertex == null ? new LawVertex(spec) : normalizedVertex.clone();
+            g.addVertex(LAWS, vertex, INPUT, HEAD);
             g.addLayer(OUTPUT, new LossLayer.Builder().lossFunction(loss).activation(Activation.IDENTITY).build(), LAWS);
             g.setOutputs(OUTPUT);
             return g.build();

@@ -14,6 +14,7 @@ import org.deeplearning4j.nn.conf.memory.MemoryReport;
 import org.deeplearning4j.optimize.api.TrainingListener;
 import org.nd4j.linalg.api.buffer.DataType;
 import org.nd4j.linalg.api.ndarray.INDArray;
+import org.nd4j.linalg.dataset.api.preprocessor.DataNormalization;
 
 /**
  * Configuration of the law layer for a {@code MultiLayerNetwork}: it receives the head's free outputs z
@@ -27,11 +28,20 @@ import org.nd4j.linalg.api.ndarray.INDArray;
  * {@code ComputationGraph} (see {@link ConstrainedGraph}).
  *
  * <p>The law text is kept in a {@link LawSpec} and saved, readable, in the network's JSON configuration.
+ *
+ * <p><b>Normalised training.</b> When the labels are normalised by a Deeplearning4j normalizer, build the layer with
+ * {@link #normalizedWith(DataNormalization)}: the head then predicts normalised free outputs z_n, the layer maps them
+ * to physical units (z = σ_z·z_n + μ_z, per column, from the normalizer's label statistics), completes in physical
+ * units, where the laws hold, and emits normalised outputs y_n = (y − μ)/σ for every column in declared order, so the
+ * loss compares them with the normalised labels. The free columns pass z_n through unchanged. Backward applies the
+ * chain rule through both affine maps exactly. {@link #getOutputScaling()} maps the network's outputs back to physical
+ * units in double. Without a normalizer ({@link #getOutputScaling()} null) the layer works in the units of its input.
  */
 public class LawLayer extends NoParamLayer {
     private static final long serialVersionUID = 1L;
 
     private LawSpec spec;
+    private Scaling outputScaling;
 
     /** For the JSON mapper; use {@link #LawLayer(LawSpec)} or {@link #of(String)}. */
     public LawLayer() {
@@ -64,6 +74,46 @@ public class LawLayer extends NoParamLayer {
     /** Sets the laws this layer enforces; for the JSON mapper. */
     public void setSpec(LawSpec spec) {
         this.spec = spec;
+    }
+
+    /**
+     * A copy of this layer that trains on normalised labels while the laws hold in physical units: it folds the
+     * normalizer's per-column label statistics (mean and standard deviation, or min, max and the target range) into
+     * the configuration as plain numbers ({@link Scaling}), saved with the network. Fit the normalizer first, with
+     * labels: {@code normalizer.fitLabel(true); normalizer.fit(trainingIterator);} and normalise the training data
+     * with it ({@code iterator.setPreProcessor(normalizer)}). The layer then takes normalised free outputs and emits
+     * normalised outputs, so the loss sees normalised values; completing in normalised space instead would break
+     * every law whose terms do not share one scale and offset. The normalizer's features are not used: the laws of a
+     * layer have no inputs.
+     *
+     * @param normalizer a fitted {@code NormalizerStandardize} or {@code NormalizerMinMaxScaler} with label statistics
+     * @return a new layer; this one is left unchanged
+     * @throws IllegalArgumentException when the normalizer is of another kind, does not normalise labels, has a label
+     *         count other than the number of outputs, or a constant label column (the message says what to change)
+     */
+    public LawLayer normalizedWith(DataNormalization normalizer) {
+        Completion c = lawCompletion();
+        LawLayer l = clone();
+        l.outputScaling = NormalizerFolding.labels("law layer", normalizer, NdArrays.declaredColumns(c));
+        return l;
+    }
+
+    /** @return the folded label statistics (physical = scale·normalised + offset per output column), or null */
+    public Scaling getOutputScaling() {
+        return outputScaling;
+    }
+
+    /** Sets the folded label statistics, one column per declared output (null: physical units); for the JSON mapper. */
+    public void setOutputScaling(Scaling outputScaling) {
+        this.outputScaling = outputScaling;
+    }
+
+    /**
+     * @return the output scaling, checked against the law set (null when there is none)
+     * @throws IllegalStateException when its width is not the number of outputs
+     */
+    Scaling checkedOutputScaling(Completion c) {
+        return NdArrays.checkScaling(who(), outputScaling, "output", c.outputWidth());
     }
 
     /**
@@ -106,7 +156,7 @@ public class LawLayer extends NoParamLayer {
             boolean initializeParams, DataType networkDataType) {
         // builds (and so checks) the completion now: a law text that no longer parses fails when the network is
         // initialised, with the law language's diagnostics
-        lawCompletion();
+        checkedOutputScaling(lawCompletion());
         LawLayerImpl layer = newLayer(conf, networkDataType);
         layer.setListeners(trainingListeners);
         layer.setIndex(layerIndex);
@@ -163,15 +213,16 @@ public class LawLayer extends NoParamLayer {
                 .build();
     }
 
-    /** @return a deep copy (the spec is copied too) */
+    /** @return a deep copy (the spec and the output scaling are copied too) */
     @Override
     public LawLayer clone() {
         LawLayer c = (LawLayer) super.clone();
         c.spec = NdArrays.copy(spec);
+        c.outputScaling = outputScaling == null ? null : outputScaling.copy();
         return c;
     }
 
-    /** Equal when the base layer settings and the specs are equal. */
+    /** Equal when the base layer settings, the specs and the output scalings are equal. */
     @Override
     public boolean equals(Object o) {
         if (this == o) {
@@ -180,18 +231,20 @@ public class LawLayer extends NoParamLayer {
         if (!(o instanceof LawLayer) || o.getClass() != getClass()) {
             return false;
         }
-        return super.equals(o) && Objects.equals(spec, ((LawLayer) o).spec);
+        return super.equals(o) && Objects.equals(spec, ((LawLayer) o).spec)
+                && Objects.equals(outputScaling, ((LawLayer) o).outputScaling);
     }
 
-    /** @return a hash of the base layer settings and the spec */
+    /** @return a hash of the base layer settings, the spec and the output scaling */
     @Override
     public int hashCode() {
-        return 31 * super.hashCode() + Objects.hashCode(spec);
+        return 31 * super.hashCode() + Objects.hashCode(spec) + 961 * Objects.hashCode(outputScaling);
     }
 
     /** @return the layer name and the spec */
     @Override
     public String toString() {
-        return "LawLayer{" + (layerName == null ? "" : layerName + ", ") + spec + "}";
+        return "LawLayer{" + (layerName == null ? "" : layerName + ", ") + spec
+                + (outputScaling == null ? "" : ", normalised outputs") + "}";
     }
 }

@@ -14,7 +14,9 @@ import org.nd4j.linalg.api.ndarray.INDArray;
 
 /**
  * The running law layer of {@link LawLayer}: forward y = complete(z), backward ḡ_z = ḡ_f − (∂C/∂z)ᵀλ with
- * Aᵀλ = ḡ_c, both by {@link Completion} in double. Activations are returned in the workspace manager's
+ * Aᵀλ = ḡ_c, both by {@link Completion} in double. With an output scaling ({@link LawLayer#normalizedWith}) the
+ * input is z_n and the output y_n: forward z = σ_z·z_n + μ_z, y = complete(z), y_n = (y − μ)/σ (free columns pass
+ * z_n through); backward ḡ_y = ḡ_n/σ, ḡ_z from {@link Completion#backward}, ḡ_z_n = σ_z·ḡ_z. Activations are returned in the workspace manager's
  * {@code ACTIVATIONS} arrays and epsilons in {@code ACTIVATION_GRAD} arrays, in the network's data type.
  *
  * <p>Not thread-safe, like every Deeplearning4j layer: it keeps one {@link Completion.Workspace}.
@@ -57,10 +59,16 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
     }
 
     /**
-     * @return the completed outputs for the current input, in double, declared order ({@code batch × outputWidth})
+     * @return the completed outputs for the current input, in double, declared order ({@code batch × outputWidth});
+     *         in physical units when the layer has an output scaling
      */
     protected double[] complete(Completion c, int batch) {
-        double[] z = NdArrays.toDouble(input);
+        return complete(c, batch, NdArrays.toDouble(input));
+    }
+
+    private double[] complete(Completion c, int batch, double[] zIn) {
+        Scaling out = layerConf().checkedOutputScaling(c);
+        double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
         double[] y = new double[batch * c.outputWidth()];
         c.forward(null, z, batch, y, null, workspace(c));
         return y;
@@ -68,7 +76,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
 
     /**
      * Completes the input: {@code [batch, freeWidth]} free outputs to {@code [batch, outputWidth]} outputs in
-     * declared order, in the network's data type.
+     * declared order, in the network's data type (both normalised when the layer has an output scaling).
      *
      * @throws IllegalArgumentException when the input's width is not {@code freeWidth()}
      * @throws dev.lawful.enforce.EnforcementException when a sample cannot be enforced (unless the spec masks)
@@ -78,7 +86,12 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         assertInputSet(false);
         Completion c = completion();
         int batch = checkedBatch(c, input);
-        double[] y = complete(c, batch);
+        double[] zIn = NdArrays.toDouble(input);
+        double[] y = complete(c, batch, zIn);
+        Scaling out = layerConf().checkedOutputScaling(c);
+        if (out != null) {
+            y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, zIn, batch);
+        }
         return NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATIONS, dataType, y, batch, c.outputWidth());
     }
 
@@ -99,7 +112,14 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         double[] y = complete(c, batch);
         double[] gy = NdArrays.toDouble(epsilon);
         double[] gz = new double[batch * c.freeWidth()];
+        Scaling scaling = layerConf().checkedOutputScaling(c);
+        if (scaling != null) {
+            NdArrays.divideByScale(scaling, gy);
+        }
         c.backward(null, y, gy, batch, gz, null, workspace(c));
+        if (scaling != null) {
+            NdArrays.multiplyByScale(scaling, c.freeOutputs(), gz);
+        }
         INDArray out = NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATION_GRAD, dataType, gz, batch, c.freeWidth());
         return new Pair<>(new DefaultGradient(), out);
     }

@@ -15,7 +15,10 @@ import org.nd4j.linalg.api.ndarray.INDArray;
 /**
  * The running law vertex of {@link LawVertex}: forward y = complete(x, z); backward ḡ_z = ḡ_f − (∂C/∂z)ᵀλ and
  * ḡ_x = −(∂C/∂x)ᵀλ with Aᵀλ = ḡ_c, both by {@link Completion} in double. Outputs go to the workspace manager's
- * {@code ACTIVATIONS} arrays, gradients to {@code ACTIVATION_GRAD} arrays, in the network's data type.
+ * {@code ACTIVATIONS} arrays, gradients to {@code ACTIVATION_GRAD} arrays, in the network's data type. With the
+ * scalings of {@link LawVertex#normalizedWith} the inputs are x_n, z_n and the output y_n: forward x = σ_x·x_n + μ_x,
+ * z = σ_z·z_n + μ_z, y = complete(x, z), y_n = (y − μ)/σ (free columns pass z_n through); backward ḡ_y = ḡ_n/σ,
+ * ḡ_x, ḡ_z from {@link Completion#backward}, ḡ_x_n = σ_x·ḡ_x, ḡ_z_n = σ_z·ḡ_z.
  *
  * <p>Not thread-safe, like every Deeplearning4j vertex: it keeps one {@link Completion.Workspace}.
  */
@@ -78,14 +81,28 @@ public class LawVertexImpl extends BaseGraphVertex {
         return bz;
     }
 
-    /** @return the outputs for the current inputs, in double, declared order; {@code xOut[0]} receives x */
+    /**
+     * @return the outputs for the current inputs, in double, declared order, in physical units when the vertex has
+     *         scalings; {@code xOut[0]} receives the (physical) x and, when {@code xOut} has two slots,
+     *         {@code xOut[1]} the free outputs as given
+     */
     protected double[] complete(Completion c, int batch, double[][] xOut) {
         double[] x = NdArrays.toDouble(inputs[0]);
-        double[] z = NdArrays.toDouble(inputs[1]);
+        double[] zIn = NdArrays.toDouble(inputs[1]);
+        Scaling in = config.checkedInputScaling(c);
+        Scaling out = config.checkedOutputScaling(c);
+        double[] z = zIn;
+        if (out != null) {
+            x = in.toPhysical(x, batch);
+            z = NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
+        }
         double[] y = new double[batch * c.outputWidth()];
         c.forward(x, z, batch, y, null, workspace(c));
         if (xOut != null) {
             xOut[0] = x;
+            if (xOut.length > 1) {
+                xOut[1] = zIn;
+            }
         }
         return y;
     }
@@ -114,7 +131,12 @@ public class LawVertexImpl extends BaseGraphVertex {
         }
         Completion c = completion();
         int batch = checkedBatch(c);
-        double[] y = complete(c, batch, null);
+        double[][] given = new double[2][];
+        double[] y = complete(c, batch, given);
+        Scaling out = config.checkedOutputScaling(c);
+        if (out != null) {
+            y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, given[1], batch);
+        }
         return NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATIONS, dataType, y, batch, c.outputWidth());
     }
 
@@ -133,7 +155,16 @@ public class LawVertexImpl extends BaseGraphVertex {
         double[] gy = NdArrays.toDouble(epsilon);
         double[] gz = new double[batch * c.freeWidth()];
         double[] gx = new double[batch * c.inputWidth()];
+        Scaling in = config.checkedInputScaling(c);
+        Scaling scaling = config.checkedOutputScaling(c);
+        if (scaling != null) {
+            NdArrays.divideByScale(scaling, gy);
+        }
         c.backward(x[0], y, gy, batch, gz, gx, workspace(c));
+        if (scaling != null) {
+            NdArrays.multiplyByScale(scaling, c.freeOutputs(), gz);
+            NdArrays.multiplyByScale(in, gx);
+        }
         INDArray[] out = {
             NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATION_GRAD, dataType, gx, batch, c.inputWidth()),
             NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATION_GRAD, dataType, gz, batch, c.freeWidth())

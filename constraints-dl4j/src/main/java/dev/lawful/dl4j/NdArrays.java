@@ -95,4 +95,89 @@ final class NdArrays {
         s.setMaskBadSamples(spec.isMaskBadSamples());
         return s;
     }
+
+    /**
+     * @return the declared output names, the label columns a normalizer must hold
+     * @throws IllegalArgumentException when the completion's layout is not the declared order
+     */
+    static List<String> declaredColumns(Completion c) {
+        if (c.layout() != Completion.Layout.DECLARED) {
+            throw new IllegalArgumentException("normalised outputs need the declared output order, found layout "
+                    + c.layout());
+        }
+        return c.laws().outputNames();
+    }
+
+    /**
+     * @return {@code s} (null when there is none) after checking it has {@code width} valid columns
+     * @throws IllegalStateException naming the widths
+     */
+    static Scaling checkScaling(String who, Scaling s, String what, int width) {
+        if (s == null) {
+            return null;
+        }
+        s.check();
+        if (s.width() != width) {
+            throw new IllegalStateException(who + ": its " + what + " scaling has " + s.width() + " columns but the"
+                    + " law set has " + width + " " + what + "s; fold the normalizer again with normalizedWith");
+        }
+        return s;
+    }
+
+    /** @return the physical free outputs z = scale·z_n + offset, with the output scaling's free columns */
+    static double[] physicalFree(Scaling out, int[] free, double[] zn, int batch) {
+        int nf = free.length;
+        double[] z = new double[batch * nf];
+        for (int s = 0; s < batch; s++) {
+            for (int f = 0; f < nf; f++) {
+                int j = free[f];
+                z[s * nf + f] = out.scale(j) * zn[s * nf + f] + out.offset(j);
+            }
+        }
+        return z;
+    }
+
+    /**
+     * @return the normalised outputs, (y − offset)/scale per declared column, except that the free columns take the
+     *         normalised free outputs {@code zn} unchanged (the same values, with no round trip through physical
+     *         units)
+     */
+    static double[] normalisedOutputs(Scaling out, int[] free, double[] y, double[] zn, int batch) {
+        int p = out.width();
+        int nf = free.length;
+        double[] yn = new double[batch * p];
+        for (int s = 0; s < batch; s++) {
+            for (int j = 0; j < p; j++) {
+                yn[s * p + j] = (y[s * p + j] - out.offset(j)) / out.scale(j);
+            }
+            for (int f = 0; f < nf; f++) {
+                yn[s * p + free[f]] = zn[s * nf + f];
+            }
+        }
+        return yn;
+    }
+
+    /** Divides each column of {@code g} (row-major, {@code s.width()} columns) by its scale, in place. */
+    static void divideByScale(Scaling s, double[] g) {
+        int w = s.width();
+        for (int i = 0; i < g.length; i++) {
+            g[i] /= s.scale(i % w);
+        }
+    }
+
+    /** Multiplies column k of {@code g} (row-major, {@code cols.length} columns) by the scale of {@code cols[k]}. */
+    static void multiplyByScale(Scaling s, int[] cols, double[] g) {
+        int w = cols.length;
+        for (int i = 0; i < g.length; i++) {
+            g[i] *= s.scale(cols[i % w]);
+        }
+    }
+
+    /** Multiplies each column of {@code g} (row-major, {@code s.width()} columns) by its scale, in place. */
+    static void multiplyByScale(Scaling s, double[] g) {
+        int w = s.width();
+        for (int i = 0; i < g.length; i++) {
+            g[i] *= s.scale(i % w);
+        }
+    }
 }
