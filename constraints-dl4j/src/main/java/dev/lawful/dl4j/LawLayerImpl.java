@@ -86,13 +86,23 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         assertInputSet(false);
         Completion c = completion();
         int batch = checkedBatch(c, input);
+        double[] y = outputs(c, batch);
+        return NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATIONS, dataType, y, batch, c.outputWidth());
+    }
+
+    /**
+     * @return the layer's outputs for the current input in double, declared order ({@code batch × outputWidth}):
+     *         the values {@link #activate} emits before rounding to the network's data type (normalised when the
+     *         layer has an output scaling)
+     */
+    double[] outputs(Completion c, int batch) {
         double[] zIn = NdArrays.toDouble(input);
         double[] y = complete(c, batch, zIn);
         Scaling out = layerConf().checkedOutputScaling(c);
         if (out != null) {
             y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, zIn, batch);
         }
-        return NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATIONS, dataType, y, batch, c.outputWidth());
+        return y;
     }
 
     /**
