@@ -159,21 +159,8 @@ public final class Penalty {
      */
     public double value(double[] x, double[] y, int batch, double[] perSample, Workspace workspace) {
         check(batch, length(x), length(y), perSample == null ? -2 : perSample.length, -2, -2);
-        Workspace ws = mine(workspace);
-        double[] sum = ws.sum;
-        sum[0] = 0;
-        sum[1] = 0;
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            chunk(ws, m, false, false);
-            accumulate(ws.values, m, sum);
-            if (perSample != null) {
-                System.arraycopy(ws.values, 0, perSample, s0, m);
-            }
-        }
-        return sum[0] + sum[1];
+        return run(x, y, batch, perSample, null, null, workspace);
+
     }
 
     /**
@@ -202,21 +189,8 @@ public final class Penalty {
      */
     public double value(float[] x, float[] y, int batch, float[] perSample, Workspace workspace) {
         check(batch, length(x), length(y), perSample == null ? -2 : perSample.length, -2, -2);
-        Workspace ws = mine(workspace);
-        double[] sum = ws.sum;
-        sum[0] = 0;
-        sum[1] = 0;
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            chunk(ws, m, false, false);
-            accumulate(ws.values, m, sum);
-            if (perSample != null) {
-                store(ws.values, perSample, s0, m);
-            }
-        }
-        return sum[0] + sum[1];
+        return run(x, y, batch, perSample, null, null, workspace);
+
     }
 
     // ---- gradient --------------------------------------------------------------------------------------------
@@ -236,24 +210,8 @@ public final class Penalty {
      */
     public double gradient(double[] x, double[] y, int batch, double[] gy, double[] gx, Workspace workspace) {
         check(batch, length(x), length(y), -2, gy == null ? -2 : gy.length, gx == null ? -2 : gx.length);
-        Workspace ws = mine(workspace);
-        double[] sum = ws.sum;
-        sum[0] = 0;
-        sum[1] = 0;
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            chunk(ws, m, gy != null, gx != null);
-            accumulate(ws.values, m, sum);
-            if (gy != null) {
-                System.arraycopy(ws.gy, 0, gy, s0 * p, m * p);
-            }
-            if (gx != null) {
-                System.arraycopy(ws.gx, 0, gx, s0 * nIn, m * nIn);
-            }
-        }
-        return sum[0] + sum[1];
+        return run(x, y, batch, null, gy, gx, workspace);
+
     }
 
     /**
@@ -286,6 +244,17 @@ public final class Penalty {
      */
     public double gradient(float[] x, float[] y, int batch, float[] gy, float[] gx, Workspace workspace) {
         check(batch, length(x), length(y), -2, gy == null ? -2 : gy.length, gx == null ? -2 : gx.length);
+        return run(x, y, batch, null, gy, gx, workspace);
+
+    }
+
+    // ---- kernel ----------------------------------------------------------------------------------------------
+
+    /**
+     * The one chunk loop behind every entry point: the arrays are {@code double[]} or {@code float[]} (checked by
+     * the caller), computation is in double, results are copied or rounded once.
+     */
+    private double run(Object x, Object y, int batch, Object perSample, Object gy, Object gx, Workspace workspace) {
         Workspace ws = mine(workspace);
         double[] sum = ws.sum;
         sum[0] = 0;
@@ -296,6 +265,9 @@ public final class Penalty {
             load(y, s0 * p, ws.y, m * p);
             chunk(ws, m, gy != null, gx != null);
             accumulate(ws.values, m, sum);
+            if (perSample != null) {
+                store(ws.values, perSample, s0, m);
+            }
             if (gy != null) {
                 store(ws.gy, gy, s0 * p, m * p);
             }
@@ -305,8 +277,6 @@ public final class Penalty {
         }
         return sum[0] + sum[1];
     }
-
-    // ---- kernel ----------------------------------------------------------------------------------------------
 
     /** Per-sample values into {@code ws.values}, and the gradients asked for into {@code ws.gy}, {@code ws.gx}. */
     private void chunk(Workspace ws, int m, boolean withY, boolean withX) {

@@ -323,16 +323,9 @@ public final class Projection {
         checkBatch(batch, length(x, -1), length(y, -1), status);
         need("out", length(out, -2), (long) batch * p);
         double[] result = out != null ? out : new double[batch * p];
-        Workspace ws = mine(workspace);
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            kernel.forward(ws, s0, m);
-            System.arraycopy(ws.out, 0, result, s0 * p, m * p);
-            storeStatus(ws, status, s0, m);
-        }
+        forwardChunks(x, y, batch, result, status, workspace);
         return result;
+
     }
 
     /**
@@ -369,16 +362,9 @@ public final class Projection {
         checkBatch(batch, length(x, -1), length(y, -1), status);
         need("out", length(out, -2), (long) batch * p);
         float[] result = out != null ? out : new float[batch * p];
-        Workspace ws = mine(workspace);
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            kernel.forward(ws, s0, m);
-            store(ws.out, result, s0 * p, m * p);
-            storeStatus(ws, status, s0, m);
-        }
+        forwardChunks(x, y, batch, result, status, workspace);
         return result;
+
     }
 
     // ---- backward --------------------------------------------------------------------------------------------
@@ -412,20 +398,9 @@ public final class Projection {
         checkBackward(batch, length(x, -1), length(y, -1), length(gradOut, -1), length(gradY, -2),
                 length(gradX, -2), status);
         double[] result = gradY != null ? gradY : new double[batch * p];
-        Workspace ws = mine(workspace);
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            load(gradOut, s0 * p, ws.g, m * p);
-            kernel.backward(ws, s0, m, gradX != null);
-            System.arraycopy(ws.out, 0, result, s0 * p, m * p);
-            if (gradX != null) {
-                System.arraycopy(ws.gx, 0, gradX, s0 * nIn, m * nIn);
-            }
-            storeStatus(ws, status, s0, m);
-        }
+        backwardChunks(x, y, batch, gradOut, result, gradX, gradX != null, status, workspace);
         return result;
+
     }
 
     /**
@@ -452,20 +427,9 @@ public final class Projection {
         checkBackward(batch, length(x, -1), length(y, -1), length(gradOut, -1), length(gradY, -2),
                 length(gradX, -2), status);
         float[] result = gradY != null ? gradY : new float[batch * p];
-        Workspace ws = mine(workspace);
-        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
-            int m = Math.min(CHUNK, batch - s0);
-            load(x, s0 * nIn, ws.x, m * nIn);
-            load(y, s0 * p, ws.y, m * p);
-            load(gradOut, s0 * p, ws.g, m * p);
-            kernel.backward(ws, s0, m, gradX != null);
-            store(ws.out, result, s0 * p, m * p);
-            if (gradX != null) {
-                store(ws.gx, gradX, s0 * nIn, m * nIn);
-            }
-            storeStatus(ws, status, s0, m);
-        }
+        backwardChunks(x, y, batch, gradOut, result, gradX, gradX != null, status, workspace);
         return result;
+
     }
 
     // ---- Jacobians -------------------------------------------------------------------------------------------
@@ -508,6 +472,37 @@ public final class Projection {
     }
 
     // ---- plumbing --------------------------------------------------------------------------------------------
+
+    /** The forward chunk loop for both entry points ({@code double[]} or {@code float[]} arrays, checked). */
+    private void forwardChunks(Object x, Object y, int batch, Object result, byte[] status, Workspace workspace) {
+        Workspace ws = mine(workspace);
+        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
+            int m = Math.min(CHUNK, batch - s0);
+            load(x, s0 * nIn, ws.x, m * nIn);
+            load(y, s0 * p, ws.y, m * p);
+            kernel.forward(ws, s0, m);
+            store(ws.out, result, s0 * p, m * p);
+            storeStatus(ws, status, s0, m);
+        }
+    }
+
+    /** The backward chunk loop for both entry points; {@code result} may be {@code gradOut} itself. */
+    private void backwardChunks(Object x, Object y, int batch, Object gradOut, Object result, Object gradX,
+                                boolean withX, byte[] status, Workspace workspace) {
+        Workspace ws = mine(workspace);
+        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
+            int m = Math.min(CHUNK, batch - s0);
+            load(x, s0 * nIn, ws.x, m * nIn);
+            load(y, s0 * p, ws.y, m * p);
+            load(gradOut, s0 * p, ws.g, m * p);
+            kernel.backward(ws, s0, m, withX);
+            store(ws.out, result, s0 * p, m * p);
+            if (withX) {
+                store(ws.gx, gradX, s0 * nIn, m * nIn);
+            }
+            storeStatus(ws, status, s0, m);
+        }
+    }
 
     private Workspace mine(Workspace ws) {
         if (ws == null) {
