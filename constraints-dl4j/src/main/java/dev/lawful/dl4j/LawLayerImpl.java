@@ -67,12 +67,25 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
     }
 
     private double[] complete(Completion c, int batch, double[] zIn) {
+        // backward follows forward on the same input: reuse that solution rather than solving again (compared by
+        // value, since a workspace may hand the same array back with new contents)
+        if (lastY != null && lastOwner == c && java.util.Arrays.equals(lastZ, zIn)) {
+            return lastY;
+        }
         Scaling out = layerConf().checkedOutputScaling(c);
         double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
         double[] y = new double[batch * c.outputWidth()];
         c.forward(null, z, batch, y, null, workspace(c));
+        lastZ = zIn;
+        lastY = y;
+        lastOwner = c;
         return y;
     }
+
+    /** The last input solved (as converted), its solution, and the completion that solved it. */
+    private double[] lastZ;
+    private double[] lastY;
+    private Completion lastOwner;
 
     /**
      * Completes the input: {@code [batch, freeWidth]} free outputs to {@code [batch, outputWidth]} outputs in
