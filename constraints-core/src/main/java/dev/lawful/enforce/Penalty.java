@@ -44,6 +44,8 @@ public final class Penalty {
     private final double[] weights;
     /** w_i / u_i²: P = Σ c_i r_i², dP/dr_i = 2 c_i r_i. */
     private final double[] coefficient;
+    /** √w_i / u_i: ρ_i = root_i r_i, P = Σ ρ_i². */
+    private final double[] root;
 
     /** Work arrays for one thread; get one from {@link #newWorkspace()}. Not thread-safe. */
     public static final class Workspace {
@@ -87,6 +89,7 @@ public final class Penalty {
         }
         this.weights = new double[n];
         this.coefficient = new double[n];
+        this.root = new double[n];
         this.yStart = new int[n + 1];
         this.xStart = new int[n + 1];
         this.yColumns = new int[nnzY];
@@ -100,6 +103,7 @@ public final class Penalty {
             weights[i] = wi;
             double u = laws.lawUnit(e.law(i).name()).factor();
             coefficient[i] = wi / (u * u);
+            root[i] = Math.sqrt(wi) / u;
             int[] oc = evaluator.outputColumns(i);
             System.arraycopy(oc, 0, yColumns, evaluator.outputOffset(i), oc.length);
             yStart[i + 1] = evaluator.outputOffset(i) + oc.length;
@@ -246,6 +250,91 @@ public final class Penalty {
         check(batch, length(x), length(y), -2, gy == null ? -2 : gy.length, gx == null ? -2 : gx.length);
         return run(x, y, batch, null, gy, gx, workspace);
 
+    }
+
+    // ---- weighted residuals ------------------------------------------------------------------------------------
+
+    /** @return the number of scalar laws m, the width of {@link #weightedResiduals} per sample */
+    public int lawCount() {
+        return n;
+    }
+
+    /**
+     * The weighted residuals whose squares add up to the penalty: {@code ρ_i = √w_i · r_i / u_i} per sample and
+     * scalar law, so that P = Σ_i ρ_i². A network can emit ρ as an extra output trained towards 0 with a
+     * sum-of-squares loss, which adds exactly P to its score.
+     *
+     * @param x         inputs in declared units (may be null when there are none); not modified
+     * @param y         outputs in declared units; not modified
+     * @param batch     number of samples
+     * @param rho       output buffer of {@code batch * lawCount()} values, row-major (modified)
+     * @param workspace this thread's work arrays, or null to allocate them for this call
+     * @throws IllegalArgumentException when an array is shorter than the batch needs
+     */
+    public void weightedResiduals(double[] x, double[] y, int batch, double[] rho, Workspace workspace) {
+        check(batch, length(x), length(y), -2, -2, -2);
+        need("rho", length(rho), (long) batch * n);
+        Workspace ws = mine(workspace);
+        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
+            int m = Math.min(CHUNK, batch - s0);
+            load(x, s0 * nIn, ws.x, m * nIn);
+            load(y, s0 * p, ws.y, m * p);
+            evaluator.residuals(ws.x, ws.y, m, ws.res, null, ws.eval);
+            for (int j = 0; j < m; j++) {
+                for (int i = 0; i < n; i++) {
+                    rho[(s0 + j) * n + i] = root[i] * ws.res[j * n + i];
+                }
+            }
+        }
+    }
+
+    /**
+     * The vector-Jacobian product of {@link #weightedResiduals}: given upstream gradients ḡ on ρ, per sample
+     * {@code gy = Σ_i ḡ_i (√w_i / u_i) ∂C_i/∂y} and the same with ∂C_i/∂x into {@code gx}.
+     *
+     * @param x         inputs in declared units (may be null when there are none); not modified
+     * @param y         outputs in declared units; not modified
+     * @param gRho      upstream gradients, {@code batch * lawCount()} values; not modified
+     * @param batch     number of samples
+     * @param gy        output buffer of {@code batch * outputWidth} values (overwritten), or null to skip it
+     * @param gx        output buffer of {@code batch * inputWidth} values (overwritten), or null to skip it
+     * @param workspace this thread's work arrays, or null to allocate them for this call
+     * @throws IllegalArgumentException when an array is shorter than the batch needs
+     */
+    public void weightedResidualsBackward(double[] x, double[] y, double[] gRho, int batch, double[] gy, double[] gx,
+            Workspace workspace) {
+        check(batch, length(x), length(y), -2, gy == null ? -2 : gy.length, gx == null ? -2 : gx.length);
+        need("gRho", length(gRho), (long) batch * n);
+        Workspace ws = mine(workspace);
+        for (int s0 = 0; s0 < batch; s0 += CHUNK) {
+            int m = Math.min(CHUNK, batch - s0);
+            load(x, s0 * nIn, ws.x, m * nIn);
+            load(y, s0 * p, ws.y, m * p);
+            evaluator.evaluate(ws.x, ws.y, m, null, null, gy != null ? ws.jy : null, gx != null ? ws.jx : null,
+                    ws.eval);
+            if (gy != null) {
+                Arrays.fill(gy, s0 * p, (s0 + m) * p, 0.0);
+            }
+            if (gx != null) {
+                Arrays.fill(gx, s0 * nIn, (s0 + m) * nIn, 0.0);
+            }
+            for (int j = 0; j < m; j++) {
+                int s = s0 + j;
+                for (int i = 0; i < n; i++) {
+                    double g = gRho[s * n + i] * root[i];
+                    if (gy != null) {
+                        for (int e = yStart[i]; e < yStart[i + 1]; e++) {
+                            gy[s * p + yColumns[e]] += g * ws.jy[j * nnzY + e];
+                        }
+                    }
+                    if (gx != null) {
+                        for (int e = xStart[i]; e < xStart[i + 1]; e++) {
+                            gx[s * nIn + xColumns[e]] += g * ws.jx[j * nnzX + e];
+                        }
+                    }
+                }
+            }
+        }
     }
 
     // ---- kernel ----------------------------------------------------------------------------------------------

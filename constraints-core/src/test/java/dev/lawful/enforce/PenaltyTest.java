@@ -137,6 +137,113 @@ class PenaltyTest {
         assertRelative(fdX, gx, 1e-7, "dP/dx");
     }
 
+    @Test
+    void weightedResidualsSquareToThePenaltyAndFollowTheHandDerivedFormula() {
+        double w1 = 0.5;
+        double w2 = 3;
+        Penalty penalty = Penalty.of(TWO_LAWS, new double[] {w1, w2});
+        assertEquals(2, penalty.lawCount());
+        double[] x = {1.25, 2.5, 0.004, 0.5, 1, 0.003};
+        double[] y = {9, 4.5, 3.5, 12, 6, 2.0};
+        double[] rho = new double[4];
+        penalty.weightedResiduals(x, y, 2, rho, null);
+        double[] perSample = new double[2];
+        penalty.value(x, y, 2, perSample);
+        // By hand as above: ρ_mass = √w1 · r_mass / u, ρ_power = √w2 · r_power (units: BIPM SI Brochure, 9th
+        // edition (2019), from memory)
+        double u = 1000.0 / 3600.0;
+        for (int s = 0; s < 2; s++) {
+            double rMass = u * (y[3 * s] + y[3 * s + 1]) - x[3 * s] - x[3 * s + 1];
+            double rPower = y[3 * s + 2] - 1000 * x[3 * s + 2];
+            assertEquals(Math.sqrt(w1) * rMass / u, rho[2 * s], 1e-12, "rho_mass of sample " + s);
+            assertEquals(Math.sqrt(w2) * rPower, rho[2 * s + 1], 1e-12, "rho_power of sample " + s);
+            double squares = rho[2 * s] * rho[2 * s] + rho[2 * s + 1] * rho[2 * s + 1];
+            assertEquals(perSample[s], squares, 1e-13 * squares, "P = sum of rho squared, sample " + s);
+        }
+        // the product with upstream gradient g: gy = g_mass √w1/u · u (each out), gx = −g_mass √w1/u (each feed),
+        // gy_P = g_power √w2, gx_Q = −1000 g_power √w2
+        double[] g = {0.75, -1.5, 2, 0.25};
+        double[] gy = new double[6];
+        double[] gx = new double[6];
+        penalty.weightedResidualsBackward(x, y, g, 2, gy, gx, null);
+        for (int s = 0; s < 2; s++) {
+            double gm = g[2 * s] * Math.sqrt(w1) / u;
+            double gp = g[2 * s + 1] * Math.sqrt(w2);
+            assertEquals(gm * u, gy[3 * s], 1e-12);
+            assertEquals(gm * u, gy[3 * s + 1], 1e-12);
+            assertEquals(gp, gy[3 * s + 2], 1e-12);
+            assertEquals(-gm, gx[3 * s], 1e-12);
+            assertEquals(-gm, gx[3 * s + 1], 1e-12);
+            assertEquals(-1000 * gp, gx[3 * s + 2], 1e-9);
+        }
+    }
+
+    @Test
+    void weightedResidualGradientsMatchCentralDifferences() {
+        SplittableRandom r = new SplittableRandom(52);
+        int laws = NONLINEAR.evaluator().lawCount();
+        double[] w = new double[laws];
+        for (int i = 0; i < laws; i++) {
+            w[i] = 0.5 + r.nextDouble();
+        }
+        Penalty penalty = Penalty.of(NONLINEAR, w);
+        int batch = 70;  // more than one chunk of 64
+        double[] x = new double[batch * 3];
+        double[] y = new double[batch * 4];
+        double[] g = new double[batch * laws];
+        for (int i = 0; i < x.length; i++) {
+            x[i] = r.nextDouble(-2, 2);
+        }
+        for (int i = 0; i < y.length; i++) {
+            y[i] = r.nextDouble(-2, 2);
+        }
+        for (int i = 0; i < g.length; i++) {
+            g[i] = r.nextDouble(-1, 1);
+        }
+        double[] gy = new double[y.length];
+        double[] gx = new double[x.length];
+        Penalty.Workspace ws = penalty.newWorkspace();
+        penalty.weightedResidualsBackward(x, y, g, batch, gy, gx, ws);
+        // Source: central difference of f = Σ g·ρ, f'(t) ≈ (f(t + h) − f(t − h)) / 2h, error O(h²) (common practice)
+        double h = 1e-5;
+        double[] rho = new double[g.length];
+        double[] fdY = new double[y.length];
+        for (int i = 0; i < y.length; i++) {
+            double[] plus = y.clone();
+            double[] minus = y.clone();
+            plus[i] += h;
+            minus[i] -= h;
+            penalty.weightedResiduals(x, plus, batch, rho, ws);
+            double fp = dot(g, rho);
+            penalty.weightedResiduals(x, minus, batch, rho, ws);
+            fdY[i] = (fp - dot(g, rho)) / (2 * h);
+        }
+        double[] fdX = new double[x.length];
+        for (int i = 0; i < x.length; i++) {
+            double[] plus = x.clone();
+            double[] minus = x.clone();
+            plus[i] += h;
+            minus[i] -= h;
+            penalty.weightedResiduals(plus, y, batch, rho, ws);
+            double fp = dot(g, rho);
+            penalty.weightedResiduals(minus, y, batch, rho, ws);
+            fdX[i] = (fp - dot(g, rho)) / (2 * h);
+        }
+        assertRelative(fdY, gy, 1e-7, "d(g.rho)/dy");
+        assertRelative(fdX, gx, 1e-7, "d(g.rho)/dx");
+        assertThrows(IllegalArgumentException.class, () -> penalty.weightedResiduals(x, y, batch, new double[3], ws));
+        assertThrows(IllegalArgumentException.class,
+                () -> penalty.weightedResidualsBackward(x, y, new double[3], batch, gy, gx, ws));
+    }
+
+    private static double dot(double[] a, double[] b) {
+        double s = 0;
+        for (int i = 0; i < a.length; i++) {
+            s += a[i] * b[i];
+        }
+        return s;
+    }
+
     private static void assertRelative(double[] expected, double[] actual, double tol, String what) {
         double scale = 0;
         double err = 0;

@@ -40,15 +40,20 @@ class NormalizedGradientTest extends DoublePrecisionTest {
      *         outputs from the laws (a user fits on training labels, which obey them)
      */
     static DataNormalization fitted(boolean standardize, Completion c, int features, long seed) {
+        return fitted(standardize, c, features, seed, SCALES);
+    }
+
+    /** {@link #fitted(boolean, Completion, int, long)} with the given column scales instead of {@code SCALES}. */
+    static DataNormalization fitted(boolean standardize, Completion c, int features, long seed, double[] scales) {
         SplittableRandom r = new SplittableRandom(seed);
         int rows = 64;
         double[] f = new double[rows * features];
         double[] z = new double[rows * c.freeWidth()];
         for (int i = 0; i < f.length; i++) {
-            f[i] = (0.5 + r.nextDouble()) * SCALES[(i % features) % SCALES.length];
+            f[i] = (0.5 + r.nextDouble()) * scales[(i % features) % scales.length];
         }
         for (int i = 0; i < z.length; i++) {
-            z[i] = (-1 + 3 * r.nextDouble()) * SCALES[(i % c.freeWidth() + 1) % SCALES.length];
+            z[i] = (-1 + 3 * r.nextDouble()) * scales[(i % c.freeWidth() + 1) % scales.length];
         }
         double[] y = new double[rows * c.outputWidth()];
         c.forward(c.inputWidth() == 0 ? null : f, z, rows, y, null, c.newWorkspace());
