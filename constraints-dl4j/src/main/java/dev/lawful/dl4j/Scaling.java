@@ -126,6 +126,29 @@ public final class Scaling implements java.io.Serializable {
         return out;
     }
 
+    /**
+     * Error bounds for {@link dev.lawful.enforce.RoundingBound} when a float network emitted these outputs normalised:
+     * per value v (widened from float) of column j, e = ½·σ_j·ulp_f32(v) + 2⁻⁵¹·(|σ_j·v + μ_j| + |μ_j| + |σ_j·v|),
+     * the float rounding of the normalised value mapped to physical units plus the double rounding of the two affine
+     * maps.
+     *
+     * @param normalised row-major {@code batch × width()} normalised outputs, widened from float
+     * @param batch      number of rows
+     * @return a new array of the bounds, physical units
+     */
+    public double[] floatOutputError(double[] normalised, int batch) {
+        int w = width();
+        double[] e = new double[batch * w];
+        for (int i = 0; i < e.length; i++) {
+            int j = i % w;
+            double v = normalised[i];
+            double sv = scale[j] * v;
+            e[i] = 0.5 * scale[j] * Math.ulp((float) v)
+                    + 0x1p-51 * (Math.abs(sv + offset[j]) + Math.abs(offset[j]) + Math.abs(sv));
+        }
+        return e;
+    }
+
     /** @return a copy of this scaling, unchecked (arrays copied) */
     Scaling copy() {
         Scaling s = new Scaling();
