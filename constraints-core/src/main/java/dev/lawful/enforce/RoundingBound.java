@@ -7,12 +7,14 @@ import dev.lawful.algebra.LawEvaluator;
  * The documented exactness bound of a {@link Completion}, per sample and scalar law, for outputs that may have been
  * rounded or mapped after enforcement:
  * <pre>
- *   |C_i(x, y)| ≤ b_i = (d_i + 3)·2⁻⁵³·s_i + Σ_{j completed} |∂C_i/∂y_j| · e_j
+ *   |C_i(x, y)| ≤ b_i = (d_i + 3)·2⁻⁵³·s_i + Σ_{j completed} |∂C_i/∂y_j| · e_j + Σ_k |∂C_i/∂x_k| · e_x,k
  * </pre>
  * where s_i is the law's natural scale, d_i its rounding depth ({@link ExpandedLaws}) and e_j a bound on the
  * absolute error added to the completed output j after enforcement: 0 for the double entry points, ½·ulp_f32(y_j)
  * when the outputs were rounded to float, σ_j times that (plus the double rounding of the map) when a network emitted
- * them normalised in float. Everything is evaluated at the given outputs with the law set's own evaluator.
+ * them normalised in float. The last sum is for inputs the completion saw rounded (a float network sees its inputs
+ * as floats): e_x,k bounds the difference between the input given here and the one the laws were enforced for.
+ * Everything is evaluated at the given inputs and outputs with the law set's own evaluator.
  *
  * <p>Use it to verify outputs from any source (a network, a file, a host simulator) against the promise the
  * completion makes. Immutable and thread-safe; each call allocates its work arrays.
@@ -69,6 +71,8 @@ public final class RoundingBound {
      * Residuals and their bounds.
      *
      * @param x           inputs, {@code batch × inputWidth} in declared units (null when there are none)
+     * @param inputError  e_x, {@code batch × inputWidth} bounds on how far the inputs the laws were enforced for lie
+     *                    from {@code x}, or null when they are {@code x} itself
      * @param y           outputs, {@code batch × outputWidth} in declared units and order
      * @param batch       number of samples
      * @param outputError e, {@code batch × outputWidth} absolute error bounds added after enforcement (only the
@@ -79,11 +83,13 @@ public final class RoundingBound {
      *         outside)
      * @throws IllegalArgumentException when an array is shorter than the batch needs
      */
-    public int evaluate(double[] x, double[] y, int batch, double[] outputError, double[] residuals,
-            double[] bounds) {
+    public int evaluate(double[] x, double[] inputError, double[] y, int batch, double[] outputError,
+            double[] residuals, double[] bounds) {
         int n = evaluator.lawCount();
         int p = completion.outputWidth();
         int nnz = evaluator.outputNonzeros();
+        int k = completion.inputWidth();
+        int nnzX = evaluator.inputNonzeros();
         if (residuals.length < batch * n || bounds.length < batch * n) {
             throw new IllegalArgumentException("residuals and bounds must hold " + batch * n + " values (batch "
                     + batch + " × " + n + " laws), found " + residuals.length + " and " + bounds.length);
@@ -93,8 +99,14 @@ public final class RoundingBound {
                     + " × " + p + " outputs), found " + outputError.length);
         }
         double[] scale = new double[batch * n];
+        if (inputError != null && inputError.length < batch * k) {
+            throw new IllegalArgumentException("inputError must hold " + batch * k + " values (batch " + batch
+                    + " × " + k + " inputs), found " + inputError.length);
+        }
         double[] jy = new double[batch * nnz];
-        evaluator.evaluate(x, y, batch, residuals, scale, outputError == null ? null : jy, null);
+        double[] jx = new double[batch * nnzX];
+        evaluator.evaluate(x, y, batch, residuals, scale, outputError == null ? null : jy,
+                inputError == null ? null : jx, evaluator.newWorkspace());
         int outside = 0;
         for (int s = 0; s < batch; s++) {
             boolean bad = false;
@@ -102,11 +114,17 @@ public final class RoundingBound {
                 double b = (expanded.roundingDepth(i) + 3) * 0x1p-53 * scale[s * n + i];
                 if (outputError != null) {
                     int[] cols = evaluator.outputColumns(i);
-                    for (int k = 0; k < cols.length; k++) {
-                        int j = cols[k];
+                    for (int c = 0; c < cols.length; c++) {
+                        int j = cols[c];
                         if (completed[j]) {
-                            b += Math.abs(jy[s * nnz + evaluator.outputOffset(i) + k]) * outputError[s * p + j];
+                            b += Math.abs(jy[s * nnz + evaluator.outputOffset(i) + c]) * outputError[s * p + j];
                         }
+                    }
+                }
+                if (inputError != null) {
+                    int[] cols = evaluator.inputColumns(i);
+                    for (int c = 0; c < cols.length; c++) {
+                        b += Math.abs(jx[s * nnzX + evaluator.inputOffset(i) + c]) * inputError[s * k + cols[c]];
                     }
                 }
                 bounds[s * n + i] = b;

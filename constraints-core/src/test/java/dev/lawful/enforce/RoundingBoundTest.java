@@ -44,7 +44,7 @@ class RoundingBoundTest {
         double[] res = new double[batch * 2];
         double[] b = new double[batch * 2];
         // Source: constraints-core Completion class documentation, "Exactness" (the promise checked here)
-        assertEquals(0, bound.evaluate(x, y, batch, null, res, b));
+        assertEquals(0, bound.evaluate(x, null, y, batch, null, res, b));
         float[] xf = new float[x.length];
         float[] zf = new float[z.length];
         for (int i = 0; i < x.length; i++) {
@@ -63,14 +63,18 @@ class RoundingBoundTest {
         for (int i = 0; i < xf.length; i++) {
             xw[i] = xf[i];
         }
-        assertEquals(0, bound.evaluate(xw, yw, batch, RoundingBound.floatRounding(yw), res, b));
+        assertEquals(0, bound.evaluate(xw, null, yw, batch, RoundingBound.floatRounding(yw), res, b));
         // the float outputs miss the double bound on most samples: the float term is needed
-        assertTrue(bound.evaluate(xw, yw, batch, null, res, b) > batch / 2);
+        assertTrue(bound.evaluate(xw, null, yw, batch, null, res, b) > batch / 2);
+        // judged against the double inputs the float outputs were not enforced for: the input term is needed
+        double[] ex = RoundingBound.floatRounding(x);
+        assertEquals(0, bound.evaluate(x, ex, yw, batch, RoundingBound.floatRounding(yw), res, b));
+        assertTrue(bound.evaluate(x, null, yw, batch, RoundingBound.floatRounding(yw), res, b) > 0);
         // move a completed output by 8 float ulps: outside the float bound
         for (int s = 0; s < batch; s++) {
             yw[s * 3 + 2] += 8 * Math.ulp((float) yw[s * 3 + 2]);
         }
-        assertEquals(batch, bound.evaluate(xw, yw, batch, RoundingBound.floatRounding(yw), res, b));
+        assertEquals(batch, bound.evaluate(xw, null, yw, batch, RoundingBound.floatRounding(yw), res, b));
     }
 
     @Test
@@ -84,12 +88,12 @@ class RoundingBoundTest {
         RoundingBound bound = RoundingBound.of(Completion.of(balance));
         double[] res = new double[1];
         double[] b = new double[1];
-        bound.evaluate(new double[] {1, 2}, new double[] {0.5, 2.25}, 1, null, res, b);
+        bound.evaluate(new double[] {1, 2}, null, new double[] {0.5, 2.25}, 1, null, res, b);
         // By hand: rounding depth 1 (one product per addend), natural scale |0.5| + |2·2.25| + |1| + |2·2| = 10,
         // bound (1 + 3)·2⁻⁵³·10 (Source: constraints-core Completion class documentation, "Exactness")
         assertEquals(4 * 0x1p-53 * 10, b[0]);
         assertEquals(0, res[0]);
-        assertThrows(IllegalArgumentException.class, () -> bound.evaluate(new double[] {1, 2},
+        assertThrows(IllegalArgumentException.class, () -> bound.evaluate(new double[] {1, 2}, null,
                 new double[] {0.5, 2.5}, 1, null, new double[0], b));
     }
 }

@@ -333,8 +333,24 @@ public final class ConstrainedGraph {
          * @throws IllegalArgumentException when λ is negative or not finite, or the law set declares no inputs
          */
         public ComputationGraphConfiguration penalizedConfiguration(double weight) {
+            return penalizedConfiguration(weight, null);
+        }
+
+        /**
+         * {@link #penalizedConfiguration(double)} with per-law weights w_i.
+         *
+         * @param weight     λ, finite and not negative
+         * @param lawWeights w_i, one per scalar law in 1/(law unit)², finite and not negative, or null for all 1
+         * @return the configuration
+         * @throws IllegalArgumentException when a weight is negative or not finite or the law weights do not fit
+         */
+        public ComputationGraphConfiguration penalizedConfiguration(double weight, double[] lawWeights) {
             int in = inputWidth("use LawPenaltyLoss in a MultiLayerNetwork");
             LawPenaltyVertex vertex = new LawPenaltyVertex(spec, weight);
+            if (lawWeights != null) {
+                vertex.setLawWeights(lawWeights);
+                vertex.penalty();
+            }
             if (normalizer != null) {
                 vertex = vertex.normalizedWith(normalizer);
             }
@@ -356,7 +372,16 @@ public final class ConstrainedGraph {
          * @return the initialised graph of {@link #penalizedConfiguration(double)}
          */
         public ComputationGraph buildPenalized(double weight) {
-            ComputationGraph graph = new ComputationGraph(penalizedConfiguration(weight));
+            return buildPenalized(weight, null);
+        }
+
+        /**
+         * @param weight     λ, finite and not negative
+         * @param lawWeights w_i, one per scalar law, or null for all 1
+         * @return the initialised graph of {@link #penalizedConfiguration(double, double[])}
+         */
+        public ComputationGraph buildPenalized(double weight, double[] lawWeights) {
+            ComputationGraph graph = new ComputationGraph(penalizedConfiguration(weight, lawWeights));
             graph.init();
             return graph;
         }
