@@ -28,7 +28,8 @@ import picocli.CommandLine.UnmatchedArgumentException;
         description = "Checks law files (the analytic laws, such as conservation of mass, energy or elements, that a "
                 + "network's outputs are made to obey exactly), completes tables of data so that they obey them, "
                 + "and verifies how well data obey them.",
-        subcommands = {CheckCommand.class, CompleteCommand.class, VerifyCommand.class, CommandLine.HelpCommand.class},
+        subcommands = {CheckCommand.class, CompleteCommand.class, VerifyCommand.class, DemoCommand.class,
+            CommandLine.HelpCommand.class},
         commandListHeading = "%nCommands:%n",
         exitCodeListHeading = "%nExit status:%n",
         exitCodeList = {
