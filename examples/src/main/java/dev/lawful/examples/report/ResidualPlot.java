@@ -122,12 +122,28 @@ final class ResidualPlot {
                 panels);
     }
 
-    private static JFreeChart panel(ScenarioResult result, List<RunMetrics> metrics, int law) {
-        int m = result.lawCount();
+    /** @return the |residual| of law {@code law} for each run, in run order */
+    private static List<double[]> magnitudes(ScenarioResult result, int law) {
         List<double[]> magnitudes = new ArrayList<>();
         for (NetworkRun run : result.runs()) {
-            magnitudes.add(Metrics.magnitudes(run.residuals(), m, law));
+            magnitudes.add(Metrics.magnitudes(run.residuals(), result.lawCount(), law));
         }
+        return magnitudes;
+    }
+
+    /** @return the bins of law {@code law}'s panel */
+    static Bins binsOf(ScenarioResult result, int law) {
+        return Bins.cover(magnitudes(result, law), result.marks().get(law).value());
+    }
+
+    /**
+     * @param result  the scenario
+     * @param metrics its runs' metrics, in run order
+     * @param law     the law's index
+     * @return the law's panel: dataset 0 holds one series per run, keyed by its label (and its count of zeros)
+     */
+    static JFreeChart panel(ScenarioResult result, List<RunMetrics> metrics, int law) {
+        List<double[]> magnitudes = magnitudes(result, law);
         LawMark mark = result.marks().get(law);
         Bins bins = Bins.cover(magnitudes, mark.value());
         double width = 1.0 / bins.perDecade();
