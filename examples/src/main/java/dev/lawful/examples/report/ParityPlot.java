@@ -14,6 +14,8 @@ import java.util.List;
 import java.util.SplittableRandom;
 import org.jfree.chart.JFreeChart;
 import org.jfree.chart.axis.NumberAxis;
+import org.jfree.chart.plot.DatasetRenderingOrder;
+import org.jfree.chart.plot.SeriesRenderingOrder;
 import org.jfree.chart.plot.XYPlot;
 import org.jfree.chart.renderer.xy.XYLineAndShapeRenderer;
 import org.jfree.chart.title.TextTitle;
@@ -23,13 +25,14 @@ import org.jfree.data.xy.XYSeriesCollection;
 
 /**
  * The figure {@code predicted-vs-true.png}: one panel per completed output, the predicted value against the true
- * value of every network on the same test rows, with the line y = x. When there are more than
+ * value of every network on the same test rows, with the line y = x; the legend gives each network's RMSE on that
+ * output over all test rows (in the output's unit, as the axes). When there are more than
  * {@value #MAX_POINTS} test rows, the same {@value #MAX_POINTS} rows, drawn at random with a fixed seed, are shown
  * for every network and the panel says so.
  */
 final class ParityPlot {
     /** Most test rows drawn per panel. */
-    static final int MAX_POINTS = 1500;
+    static final int MAX_POINTS = 1000;
     /** Seed of the row subsample, fixed so the figure is the same on every run. */
     private static final long SEED = 0x5EED;
 
@@ -88,8 +91,9 @@ final class ParityPlot {
         double lo = Double.POSITIVE_INFINITY;
         double hi = Double.NEGATIVE_INFINITY;
         for (int i = 0; i < predicted.size(); i++) {
-            XYSeries s = new XYSeries(result.runs().get(i).label(), false, true);
             double[] y = predicted.get(i);
+            double rmse = Metrics.rmse(y, truth, p, column, 1);
+            XYSeries s = new XYSeries(result.runs().get(i).label() + ", RMSE " + Figures.of(rmse), false, true);
             for (int r : shown) {
                 double t = truth[r * p + column];
                 double v = y[r * p + column];
@@ -118,7 +122,7 @@ final class ParityPlot {
         y.setRange(lo, hi);
         XYLineAndShapeRenderer dots = new XYLineAndShapeRenderer(false, true);
         for (int i = 0; i < predicted.size(); i++) {
-            dots.setSeriesPaint(i, Charts.translucent(Charts.colour(i), 150));
+            dots.setSeriesPaint(i, Charts.translucent(Charts.colour(i), 110));
             dots.setSeriesShape(i, shape(i));
         }
         XYLineAndShapeRenderer line = new XYLineAndShapeRenderer(true, false);
@@ -128,6 +132,9 @@ final class ParityPlot {
         XYPlot plot = new XYPlot(points, x, y, dots);
         plot.setDataset(1, diagonal);
         plot.setRenderer(1, line);
+        // the runs in order, the last on top, and y = x over all of them
+        plot.setSeriesRenderingOrder(SeriesRenderingOrder.FORWARD);
+        plot.setDatasetRenderingOrder(DatasetRenderingOrder.FORWARD);
 
         JFreeChart chart = new JFreeChart(name + " (completed output)", JFreeChart.DEFAULT_TITLE_FONT, plot, true);
         chart.getLegend().setPosition(RectangleEdge.BOTTOM);
@@ -142,7 +149,7 @@ final class ParityPlot {
 
     /** @return a distinct marker per network: circle, square, triangle, diamond, then repeating */
     private static Shape shape(int index) {
-        double s = 6;
+        double s = 5;
         switch (index % 4) {
             case 0:
                 return new Ellipse2D.Double(-s / 2, -s / 2, s, s);

@@ -176,7 +176,8 @@ final class ResidualPlot {
         }
         String unit = ComparisonTable.unit(result.lawUnits().get(law));
         NumberAxis x = new NumberAxis("|lhs \u2212 rhs| (" + unit + "), log scale");
-        x.setRange(bins.zeroPosition() - 0.5 * bins.tickStep(), bins.hi());
+        // room right of the last decade so its tick label is not cut
+        x.setRange(bins.zeroPosition() - 0.5 * bins.tickStep(), bins.hi() + 0.4 * bins.tickStep());
         x.setTickUnit(new NumberTickUnit(bins.tickStep(), new DecadeFormat(bins)));
         NumberAxis y = new NumberAxis("share of test rows (%)");
         y.setUpperMargin(0.12);
@@ -208,6 +209,7 @@ final class ResidualPlot {
         line.setLabel("mark: " + (mark.label().isBlank() ? Figures.of(mark.value()) + " " + unit : mark.label()));
         line.setLabelFont(new Font(Font.SANS_SERIF, Font.ITALIC, 12));
         line.setLabelPaint(Color.BLACK);
+        line.setLabelBackgroundColor(new Color(255, 255, 255, 210));
         boolean rightHalf = (at - x.getLowerBound()) > 0.6 * (x.getUpperBound() - x.getLowerBound());
         line.setLabelAnchor(rightHalf ? RectangleAnchor.TOP_LEFT : RectangleAnchor.TOP_RIGHT);
         line.setLabelTextAnchor(rightHalf ? TextAnchor.TOP_RIGHT : TextAnchor.TOP_LEFT);
