@@ -28,6 +28,11 @@ public record NetworkRun(String label, double[] predicted, double[] residuals, d
     /**
      * Checks and copies the arguments.
      *
+     * @param label see the class comment
+     * @param predicted see the class comment
+     * @param residuals see the class comment
+     * @param lossPerEpoch see the class comment
+     * @param secondsPerEpoch see the class comment
      * @throws IllegalArgumentException when the label is null, blank or holds a line break, an array is null, or
      *                                  {@code secondsPerEpoch} is negative or not finite
      */

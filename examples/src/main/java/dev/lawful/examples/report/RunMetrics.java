@@ -19,7 +19,16 @@ import java.util.List;
 public record RunMetrics(String label, List<GroupError> groups, List<LawResidualStats> laws, double secondsPerEpoch,
                          int epochs, double finalLoss) {
 
-    /** Copies the lists unmodifiable. */
+    /**
+     * Copies the lists unmodifiable.
+     *
+     * @param label           see the class comment
+     * @param groups          see the class comment
+     * @param laws            see the class comment
+     * @param secondsPerEpoch see the class comment
+     * @param epochs          see the class comment
+     * @param finalLoss       see the class comment
+     */
     public RunMetrics {
         groups = List.copyOf(groups);
         laws = List.copyOf(laws);

@@ -42,6 +42,18 @@ public record ScenarioResult(String scenario, String title, List<String> outputN
     /**
      * Checks and copies the arguments.
      *
+     * @param scenario see the class comment
+     * @param title see the class comment
+     * @param outputNames see the class comment
+     * @param groups see the class comment
+     * @param lawNames see the class comment
+     * @param lawUnits see the class comment
+     * @param marks see the class comment
+     * @param truth see the class comment
+     * @param rows see the class comment
+     * @param completedOutputs see the class comment
+     * @param runs see the class comment
+     * @param caution see the class comment
      * @throws IllegalArgumentException naming the first argument that is inconsistent (a list of the wrong size, an
      *                                  array of the wrong length, an index out of range, a repeated name, a value
      *                                  that is not finite: NaN predictions come from a diverged network) and how to
