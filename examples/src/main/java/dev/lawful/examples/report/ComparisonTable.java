@@ -89,8 +89,8 @@ final class ComparisonTable {
                 .append(result.rows() == 1 ? " test row" : " test rows").append("\n\n");
         grid(sb);
         sb.append("\nmarks (|r| > mark counts the test rows whose residual exceeds it):\n");
-        for (LawMark mark : result.marks()) {
-            int j = result.lawNames().indexOf(mark.law());
+        for (int j = 0; j < result.lawCount(); j++) {
+            LawMark mark = result.marks().get(j);
             wrap(sb, INDENT, mark.law() + ": " + Figures.of(mark.value()) + " " + unit(result.lawUnits().get(j))
                     + (mark.label().isEmpty() ? "" : ", " + mark.label()));
         }

@@ -2,6 +2,8 @@ package dev.lawful.examples.report;
 
 import dev.lawful.examples.TruthModel.ColumnGroup;
 import dev.lawful.io.JsonWriter;
+import java.io.IOException;
+import java.io.UncheckedIOException;
 import java.util.List;
 
 /**
@@ -96,8 +98,8 @@ final class ReportJson {
         json.endObject();
         try {
             out.append('\n');
-        } catch (java.io.IOException e) {
-            throw new java.io.UncheckedIOException(e);
+        } catch (IOException e) {
+            throw new UncheckedIOException(e);
         }
     }
 }
