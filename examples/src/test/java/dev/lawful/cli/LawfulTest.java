@@ -47,6 +47,7 @@ class LawfulTest {
         assertTrue(r.out().contains("\n  check "), r.out());
         assertTrue(r.out().contains("\n  complete "), r.out());
         assertTrue(r.out().contains("\n  verify "), r.out());
+        assertTrue(r.out().contains("\n  demo "), r.out());
         assertTrue(r.out().contains("\n  help "), r.out());
         String text = words(r.out());
         assertTrue(text.contains("Caution: Lawful makes a surrogate obey the laws you write; it does not make the"

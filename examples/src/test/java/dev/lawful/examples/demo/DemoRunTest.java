@@ -1,0 +1,72 @@
+package dev.lawful.examples.demo;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.lawful.examples.report.ReportWriter;
+import java.nio.charset.StandardCharsets;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Arrays;
+import java.util.List;
+import org.junit.jupiter.api.io.TempDir;
+import org.junit.jupiter.params.ParameterizedTest;
+import org.junit.jupiter.params.provider.ValueSource;
+import org.nd4j.shade.jackson.databind.JsonNode;
+import org.nd4j.shade.jackson.databind.ObjectMapper;
+
+/**
+ * A short run of each worked scenario (small data, a few epochs): the exact network obeys every law within the
+ * completion's documented float32 bound on every test row, the unconstrained network's residuals are orders of
+ * magnitude larger, and the report files exist and parse.
+ */
+class DemoRunTest {
+
+    @ParameterizedTest
+    @ValueSource(strings = {"reformer", "column", "exchanger"})
+    void aShortRunIsExactForTheLawNetworkAndWritesAReport(String name, @TempDir Path dir) throws Exception {
+        Scenario scenario = Scenarios.named(name).withSize(1500, 3);
+        ScenarioTrainer.Outcome outcome = ScenarioTrainer.run(scenario, 7, Progress.quiet());
+        assertEquals(300, outcome.testRows());
+        List<ScenarioTrainer.Network> nets = outcome.networks();
+        assertEquals(List.of(ScenarioTrainer.UNCONSTRAINED, ScenarioTrainer.PENALTY, ScenarioTrainer.EXACT),
+                nets.stream().map(ScenarioTrainer.Network::label).toList());
+        ScenarioTrainer.Network unconstrained = nets.get(0);
+        ScenarioTrainer.Network exact = nets.get(2);
+        // Source: constraints-core Completion class documentation, "Exactness" (the documented float32 bound, with
+        // the rounding of the normalised inputs and outputs the float network saw and emitted)
+        assertEquals(0, exact.outsideBound(), name + ": exact network rows outside the documented bound");
+        int m = outcome.lawNames().size();
+        for (int i = 0; i < m; i++) {
+            double exactMax = 0;
+            double[] free = new double[outcome.testRows()];
+            for (int s = 0; s < outcome.testRows(); s++) {
+                exactMax = Math.max(exactMax, Math.abs(exact.residuals()[s * m + i]));
+                free[s] = Math.abs(unconstrained.residuals()[s * m + i]);
+            }
+            Arrays.sort(free);
+            double median = free[free.length / 2];
+            assertTrue(median > 1e3 * exactMax, name + ", law " + outcome.lawNames().get(i) + ": median |r| of the"
+                    + " unconstrained network " + median + " is not orders of magnitude above the exact network's"
+                    + " largest " + exactMax);
+        }
+        DemoReport report = DemoReport.of(outcome);
+        assertTrue(report.exactWithinBound());
+        List<Path> files = report.write(dir);
+        assertEquals(6, files.size());
+        for (Path f : files) {
+            assertTrue(Files.size(f) > 0, "empty report file " + f);
+        }
+        JsonNode json = new ObjectMapper().readTree(Files.readString(dir.resolve(ReportWriter.JSON),
+                StandardCharsets.UTF_8));
+        assertEquals(name, json.get("scenario").asText());
+        assertEquals(3, json.get("networks").size());
+        assertEquals(m, json.get("laws").size());
+        assertTrue(json.get("caution").asText().contains("exact: 0 of 300 test rows outside"), json.get("caution")
+                .asText());
+        List<String> csv = Files.readAllLines(dir.resolve(ReportWriter.RESIDUALS_CSV), StandardCharsets.UTF_8);
+        assertEquals(1 + 3 * 300, csv.size());
+        assertTrue(report.table().contains("exact"));
+        assertTrue(report.verdict().contains("exact          0 of 300"), report.verdict());
+    }
+}
