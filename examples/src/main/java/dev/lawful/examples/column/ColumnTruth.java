@@ -29,10 +29,11 @@ import java.util.SplittableRandom;
  *     downward flux F_j at interface j (0 the surface, 10 the top), layer k heats by (F_{k+1} − F_k)/(m_k c_p);
  *     F_top = F_10 and F_sfc = F_0.</li>
  * <li>Surface fluxes into layer 0: SH/(m_0 c_p) and E/m_0.</li>
- * <li>Mixing: neighbouring layers k and k+1 exchange heat c_p μ (θ_k − θ_{k+1}) Π r and moisture
- *     μ (q_k − q_{k+1}) r (θ = T (p°/p)^κ the potential temperature, μ = m_k m_{k+1}/(m_k + m_{k+1}), Π the Exner
- *     function at their interface), at the rate r = 1/τ_b of background turbulence, plus 1/τ where θ falls with
- *     height (static instability): an antisymmetric exchange that conserves both.</li>
+ * <li>Mixing: where θ = T (p°/p)^κ (the potential temperature) falls with height between layers k and k+1, the
+ *     pair exchanges heat c_p μ (θ_k − θ_{k+1}) Π / τ and moisture μ (q_k − q_{k+1}) / τ (μ = m_k m_{k+1}/(m_k +
+ *     m_{k+1}), Π the Exner function at their interface); every pair also exchanges moisture μ (q_k − q_{k+1}) / τ_b,
+ *     a background mixing that stands for the transport a single column does not resolve. Each exchange is
+ *     antisymmetric, so it conserves heat and water.</li>
  * <li>Condensation: with the state after τ of the tendencies so far (T*, q*), the excess over saturation
  *     condenses at the rate c = (q* − q_s(T*)) / (τ (1 + L_v² q_s / (c_p R_v T*²))) (saturation adjustment,
  *     common practice), heats by L_v c / c_p and rains out at once: P = Σ m_k c_k.</li>
@@ -82,13 +83,13 @@ public final class ColumnTruth implements TruthModel {
      * @param kSw    shortwave absorption coefficient of water vapour, m² per kg of vapour
      * @param kLw    longwave absorption coefficient of water vapour, m² per kg of vapour
      * @param kDry   longwave absorption coefficient of the dry air (standing for CO2 and the other gases), m²/kg
-     * @param tauBackground time scale of the background turbulent mixing between all neighbouring layers, s
+     * @param tauBackground time scale of the background mixing of moisture between all neighbouring layers, s
      *               ({@code Double.POSITIVE_INFINITY} turns it off)
      */
     public record Parameters(double tau, double albedo, double kSw, double kLw, double kDry, double tauBackground) {
         /**
          * @return the scenario's values (demo values): τ 3600 s, α 0.15, k_sw 0.01, k_lw 0.1, k_dry 1e−4 m²/kg,
-         *         background mixing over 1 day
+         *         background mixing of moisture over 1 day
          */
         public static Parameters demo() {
             return new Parameters(3600, 0.15, 0.01, 0.1, 1e-4, DAY);
@@ -240,11 +241,12 @@ public final class ColumnTruth implements TruthModel {
             double tHigh = x[xOffset + k + 1];
             double thetaLow = tLow * Math.pow(P_REF / pMid[k], kappa);
             double thetaHigh = tHigh * Math.pow(P_REF / pMid[k + 1], kappa);
-            double rate = thetaHigh < thetaLow ? 1 / tau + background : background;
+            double convective = thetaHigh < thetaLow ? 1 / tau : 0;
+            double rate = convective + background;
             if (rate > 0) {
                 double mu = mass[k] * mass[k + 1] / (mass[k] + mass[k + 1]);
                 double exner = Math.pow(pLow[k + 1] / P_REF, kappa);
-                double heat = CP * mu * (thetaLow - thetaHigh) * exner * rate;
+                double heat = CP * mu * (thetaLow - thetaHigh) * exner * convective;
                 double water = mu * (x[xOffset + LEVELS + k] - x[xOffset + LEVELS + k + 1]) * rate;
                 dT[k] -= heat / (mass[k] * CP);
                 dT[k + 1] += heat / (mass[k + 1] * CP);
