@@ -68,6 +68,14 @@ public final class DemoReport {
             sb.append(String.format(Locale.ROOT, "%n  %-14s %d of %d", n.label(), n.outsideBound(),
                     outcome.testRows()));
         }
+        List<Scenario.SideCheck> checks = outcome.scenario().sideChecks();
+        for (int c = 0; c < checks.size(); c++) {
+            sb.append(String.format(Locale.ROOT, "%nLargest |%s| over the test rows (%s), implied by the laws:",
+                    checks.get(c).name(), checks.get(c).unit()));
+            for (ScenarioTrainer.Network n : outcome.networks()) {
+                sb.append(String.format(Locale.ROOT, "%n  %-14s %.3g", n.label(), n.sideCheckMax()[c]));
+            }
+        }
         if (!exactWithinBound()) {
             sb.append(String.format(Locale.ROOT, "%n  the exact network missed the bound: this is a defect, please"
                     + " report it with the command you ran"));
@@ -103,6 +111,14 @@ public final class DemoReport {
         for (ScenarioTrainer.Network n : o.networks()) {
             sb.append(String.format(Locale.ROOT, "%s: %d of %d test rows outside the documented float32 bound. ",
                     n.label(), n.outsideBound(), o.testRows()));
+        }
+        for (int c = 0; c < s.sideChecks().size(); c++) {
+            sb.append("Largest |").append(s.sideChecks().get(c).name()).append("| (")
+                    .append(s.sideChecks().get(c).unit()).append("):");
+            for (ScenarioTrainer.Network n : o.networks()) {
+                sb.append(String.format(Locale.ROOT, " %s %.3g", n.label(), n.sideCheckMax()[c]));
+            }
+            sb.append(". ");
         }
         return sb.toString().strip();
     }

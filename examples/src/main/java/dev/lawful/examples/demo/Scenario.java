@@ -1,6 +1,7 @@
 package dev.lawful.examples.demo;
 
 import dev.lawful.examples.TruthModel;
+import java.util.List;
 import java.util.Objects;
 
 /**
@@ -19,15 +20,42 @@ import java.util.Objects;
  * @param learningRate  Adam's learning rate
  * @param penaltyWeight λ of the soft baseline; each law is weighted by 1/s̄_i², s̄_i its mean natural scale on the
  *                      training data, so λ·P is a sum of squared relative residuals
+ * @param sideChecks    quantities that should vanish when the laws hold but are not laws of the file (for the
+ *                      reformer: the total mass balance, which follows from the element balances), reported per
+ *                      network
  */
 public record Scenario(String name, String title, TruthModel truth, String caution, int samples, int epochs,
-        int[] hidden, int batchSize, double learningRate, double penaltyWeight) {
+        int[] hidden, int batchSize, double learningRate, double penaltyWeight, List<SideCheck> sideChecks) {
+
+    /**
+     * A quantity of one row that vanishes when the laws hold, such as a balance the laws imply.
+     *
+     * @param name     what it is ("total mass balance")
+     * @param unit     its unit
+     * @param function its value for the input row at {@code x[xOffset..]} and the output row at {@code y[yOffset..]}
+     */
+    public record SideCheck(String name, String unit, RowFunction function) {
+    }
+
+    /** A function of one input row and one output row. */
+    @FunctionalInterface
+    public interface RowFunction {
+        /**
+         * @param x       input rows
+         * @param xOffset first index of the row
+         * @param y       output rows
+         * @param yOffset first index of the row
+         * @return the value
+         */
+        double apply(double[] x, int xOffset, double[] y, int yOffset);
+    }
 
     /** Checks the settings. */
     public Scenario {
         Objects.requireNonNull(name, "name");
         Objects.requireNonNull(truth, "truth");
         hidden = hidden.clone();
+        sideChecks = List.copyOf(sideChecks);
         if (samples < 10 || epochs < 1 || batchSize < 1 || !(learningRate > 0) || !(penaltyWeight >= 0)) {
             throw new IllegalArgumentException("scenario " + name + ": samples must be at least 10, epochs and"
                     + " batch size at least 1, the learning rate positive and the penalty weight not negative");
@@ -47,6 +75,6 @@ public record Scenario(String name, String title, TruthModel truth, String cauti
      */
     public Scenario withSize(int samples, int epochs) {
         return new Scenario(name, title, truth, caution, samples, epochs, hidden, batchSize, learningRate,
-                penaltyWeight);
+                penaltyWeight, sideChecks);
     }
 }

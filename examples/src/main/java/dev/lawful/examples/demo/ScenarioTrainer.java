@@ -67,9 +67,10 @@ public final class ScenarioTrainer {
      *                        its penalty)
      * @param secondsPerEpoch mean wall time of a training epoch, the first left out when there are several (it also
      *                        pays for compiling the code)
+     * @param sideCheckMax    for each of the scenario's side checks, the largest |value| over the test rows
      */
     public record Network(String label, double[] predicted, double[] residuals, int outsideBound,
-            double[] lossPerEpoch, double secondsPerEpoch) {
+            double[] lossPerEpoch, double secondsPerEpoch, double[] sideCheckMax) {
     }
 
     /**
@@ -199,7 +200,14 @@ public final class ScenarioTrainer {
                     residuals[s * m + i] /= factor[i];
                 }
             }
-            networks.add(new Network(label, y, residuals, outside, fit[0], fit[1][0]));
+            List<Scenario.SideCheck> checks = scenario.sideChecks();
+            double[] sideMax = new double[checks.size()];
+            for (int c = 0; c < checks.size(); c++) {
+                for (int s = 0; s < test; s++) {
+                    sideMax[c] = Math.max(sideMax[c], Math.abs(checks.get(c).function().apply(testX, s * k, y, s * p)));
+                }
+            }
+            networks.add(new Network(label, y, residuals, outside, fit[0], fit[1][0], sideMax));
         }
         List<TruthModel.LawMark> marks = new ArrayList<>();
         List<TruthModel.LawMark> given = truth.lawMarks();

@@ -16,30 +16,48 @@ public final class Scenarios {
 
     /** Steam reformer outlet: constant-affine element balances. */
     public static Scenario reformer() {
-        return new Scenario("reformer", "Steam reformer outlet: C, H, O and N element balances (constant-affine)",
+        return new Scenario("reformer", "Steam reformer outlet: element balances (constant-affine)",
                 new ReformerTruth(),
                 "a surrogate of a reacting system is no basis for operating or designing plant without validation"
                         + " against trusted models and the applicable codes, and review by a licensed engineer.",
-                20000, 40, new int[] {64, 64}, 128, 2e-3, 100);
+                20000, 40, new int[] {64, 64}, 128, 2e-3, 100, List.of(new Scenario.SideCheck("total mass balance",
+                        "kg/s", Scenarios::reformerMass)));
+    }
+
+    /**
+     * Molar masses of CH4, H2O, CO, CO2, H2, N2 in kg/mol from the standard atomic weights
+     * (IUPAC CIAAW 2021 abridged values, from memory: H 1.0080, C 12.011, N 14.007, O 15.999).
+     */
+    private static final double[] MOLAR_MASS = {
+        (12.011 + 4 * 1.0080) / 1000, (2 * 1.0080 + 15.999) / 1000, (12.011 + 15.999) / 1000,
+        (12.011 + 2 * 15.999) / 1000, 2 * 1.0080 / 1000, 2 * 14.007 / 1000};
+
+    /** Σ M_i (out_i − feed_i) in kg/s: zero to rounding when the element balances hold. */
+    private static double reformerMass(double[] x, int xo, double[] y, int yo) {
+        double sum = 0;
+        for (int i = 0; i < 6; i++) {
+            sum += MOLAR_MASS[i] * (y[yo + i] - x[xo + i]);
+        }
+        return sum;
     }
 
     /** Single-column moist atmosphere: water and energy budgets with coefficients that depend on surface pressure. */
     public static Scenario column() {
-        return new Scenario("column", "Single-column moist atmosphere: column water and energy budgets (affine)",
+        return new Scenario("column", "Moist atmospheric column: water and energy budgets (affine)",
                 new ColumnTruth(),
                 "the column scheme is a simplified demonstration, not a validated parameterisation; a surrogate"
                         + " coupled to a weather or climate model needs validation against the scheme it replaces"
                         + " and the model's own budget diagnostics before any forecast use.",
-                20000, 40, new int[] {128, 128}, 128, 1e-3, 100);
+                20000, 40, new int[] {128, 128}, 128, 1e-3, 100, List.of());
     }
 
     /** Counterflow heat exchanger with temperature-dependent heat capacities: the nonlinear energy balance. */
     public static Scenario exchanger() {
-        return new Scenario("exchanger", "Counterflow heat exchanger: energy balance with c_p(T) (nonlinear)",
+        return new Scenario("exchanger", "Counterflow heat exchanger: energy balances with c_p(T) (nonlinear)",
                 new ExchangerTruth(),
                 "the exchanger model is a demonstration; sizing or operating real equipment needs validated"
                         + " thermal models, the applicable pressure-equipment codes and licensed review.",
-                20000, 40, new int[] {64, 64}, 128, 2e-3, 100);
+                20000, 40, new int[] {64, 64}, 128, 2e-3, 100, List.of());
     }
 
     /** @return every scenario, in tier order */

@@ -123,7 +123,13 @@ final class Charts {
             g.setColor(Color.WHITE);
             g.fillRect(0, 0, WIDTH, height);
             g.setColor(Color.BLACK);
-            g.setFont(new Font(Font.SANS_SERIF, Font.BOLD, 19));
+            // the largest bold size up to 19 pt at which the title fits the width, so a long one is never cut
+            int size = 19;
+            g.setFont(new Font(Font.SANS_SERIF, Font.BOLD, size));
+            while (size > 11 && g.getFontMetrics().stringWidth(title) > WIDTH - 16) {
+                size--;
+                g.setFont(new Font(Font.SANS_SERIF, Font.BOLD, size));
+            }
             int w = g.getFontMetrics().stringWidth(title);
             g.drawString(title, Math.max(8, (WIDTH - w) / 2), TITLE_HEIGHT - 14);
             int panelWidth = WIDTH / columns;

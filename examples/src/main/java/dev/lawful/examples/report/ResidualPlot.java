@@ -206,7 +206,8 @@ final class ResidualPlot {
         line.setPaint(Color.BLACK);
         line.setStroke(new BasicStroke(2f, BasicStroke.CAP_BUTT, BasicStroke.JOIN_MITER, 10f,
                 new float[] {8f, 4f}, 0f));
-        line.setLabel("mark: " + (mark.label().isBlank() ? Figures.of(mark.value()) + " " + unit : mark.label()));
+        // the line carries a short label; the mark's description goes under the panel title, where a long one fits
+        line.setLabel("mark");
         line.setLabelFont(new Font(Font.SANS_SERIF, Font.ITALIC, 12));
         line.setLabelPaint(Color.BLACK);
         line.setLabelBackgroundColor(new Color(255, 255, 255, 210));
@@ -217,6 +218,9 @@ final class ResidualPlot {
 
         JFreeChart chart = new JFreeChart(result.lawNames().get(law) + " (" + unit + ")", JFreeChart.DEFAULT_TITLE_FONT,
                 plot, true);
+        String described = mark.label().isBlank() ? Figures.of(mark.value()) + " " + unit : mark.label();
+        chart.addSubtitle(new org.jfree.chart.title.TextTitle("dashed line, mark: " + described,
+                new Font(Font.SANS_SERIF, Font.ITALIC, 12)));
         LegendTitle legend = chart.getLegend();
         legend.setPosition(RectangleEdge.BOTTOM);
         Charts.style(chart);

@@ -50,6 +50,23 @@ class DemoRunTest {
                     + " unconstrained network " + median + " is not orders of magnitude above the exact network's"
                     + " largest " + exactMax);
         }
+        if (name.equals("reformer")) {
+            // total mass = Σ_e (atomic weight_e × element balance_e) exactly, so with the element balances held the
+            // mass balance holds to their residuals weighted by the standard atomic weights (Source: IUPAC CIAAW
+            // standard atomic weights 2021, abridged values, from memory: C 12.011, H 1.0080, O 15.999, N 14.007)
+            double[] weight = {12.011e-3, 1.0080e-3, 15.999e-3, 14.007e-3};
+            double implied = 0;
+            for (int i = 0; i < m; i++) {
+                double largest = 0;
+                for (int s = 0; s < outcome.testRows(); s++) {
+                    largest = Math.max(largest, Math.abs(exact.residuals()[s * m + i]));
+                }
+                implied += weight[i] * largest;
+            }
+            assertEquals(List.of("carbon", "hydrogen", "oxygen", "nitrogen"), outcome.lawNames());
+            assertTrue(exact.sideCheckMax()[0] <= 2 * implied + 1e-12, exact.sideCheckMax()[0] + " > " + implied);
+            assertTrue(unconstrained.sideCheckMax()[0] > 1e3 * exact.sideCheckMax()[0]);
+        }
         DemoReport report = DemoReport.of(outcome);
         assertTrue(report.exactWithinBound());
         List<Path> files = report.write(dir);
