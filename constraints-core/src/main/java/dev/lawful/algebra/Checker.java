@@ -577,7 +577,7 @@ final class Checker {
         if (d.isNone()) {
             return "dimensionless";
         }
-        String si = Units.coherent(d).display();
+        String si = Units.named(d).display();
         if (i.unit() != null && !i.unit().text().isEmpty() && !i.unit().text().equals(si)) {
             return i.unit().text() + " (" + si + ")";
         }

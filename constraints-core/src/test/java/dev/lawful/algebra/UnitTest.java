@@ -292,4 +292,19 @@ class UnitTest {
         assertEquals(1, d.line(), () -> "the error belongs to line 1:\n" + e.getMessage());
         assertEquals(column, d.column());
     }
+
+    @Test
+    void coherentUnitsReadAsNamedUnitsTimesAPowerOfTheMetreWhereOneMatches() {
+        // Source: BIPM SI Brochure, 9th edition (2019), table 4: W = kg m2 s-3, J = kg m2 s-2, N = kg m s-2,
+        // Pa = kg m-1 s-2 (from memory)
+        assertEquals("W m-2", Units.coherent(Dimension.of(0, 1, -3, 0, 0, 0, 0)).text());   // kg s-3, an energy flux
+        assertEquals("Pa", Units.coherent(Dimension.of(-1, 1, -2, 0, 0, 0, 0)).text());  // an exact match wins
+        assertEquals("J m-2", Units.coherent(Dimension.of(0, 1, -2, 0, 0, 0, 0)).text());  // kg s-2
+        assertEquals("W m", Units.coherent(Dimension.of(3, 1, -3, 0, 0, 0, 0)).text());
+        assertEquals("kg m-2 s-1", Units.coherent(Dimension.of(-2, 1, -1, 0, 0, 0, 0)).text());  // a mass flux
+        assertEquals("mol s-1", Units.coherent(Dimension.of(0, 0, -1, 0, 0, 1, 0)).text());
+        assertEquals("W", Units.coherent(Dimension.of(2, 1, -3, 0, 0, 0, 0)).text());
+        // diagnostics keep the base symbols beside a declared unit, to compare dimensions
+        assertEquals("kg s-3", Units.named(Dimension.of(0, 1, -3, 0, 0, 0, 0)).text());
+    }
 }
