@@ -28,6 +28,9 @@ import org.openjdk.jmh.annotations.Warmup;
  * {@code affine}: column water and energy budgets whose layer weights are input pressure thicknesses (16
  * outputs, 2 laws, the completed outputs' coefficients depend on the inputs); {@code nonlinear}: a
  * counterflow exchanger energy balance with a cubic heat capacity (2 outputs, 1 law, Newton).
+ *
+ * <p>These are the law sets README quotes; {@link KernelBench} measures the same entry points on generated law
+ * sets over batch, free outputs and laws, against full hand-written and ND4J baselines.
  */
 @State(Scope.Thread)
 @BenchmarkMode(Mode.AverageTime)

@@ -38,7 +38,8 @@ import org.openjdk.jmh.annotations.Warmup;
 /**
  * One training step ({@code fit} on a batch of 1024, float32, Adam) of a 64-input, 60-output network, without
  * laws ({@code none}), with a law layer of each tier, and with the soft-penalty loss instead ({@code penalty}).
- * Shapes: {@code headline} 64 → 4×256 → 60, {@code small} 64 → 2×128 → 60. Run with {@code OMP_NUM_THREADS=1}
+ * Shapes: {@code headline} 64 → 4×256 → 60, {@code small} 64 → 2×128 → 60, {@code large} 64 → 4×1024 → 60 (not in
+ * the defaults: {@code -p shape=headline,small,large} for the full grid). Run with {@code OMP_NUM_THREADS=1}
  * ({@code benchmarks/run.sh} sets it). After the trial the largest |C|/scale over the batch is printed, in units of
  * 2⁻²⁴ (float32 rounding), for the law layers: the residual after training.
  *
@@ -90,11 +91,45 @@ public class TrainingStepBench {
         return sb.toString();
     }
 
+    /** Builds the network of this trial's tier and shape, and the batch. */
     @Setup(Level.Trial)
     public void setUp() {
+        net = network(laws, shape);
+        data = data();
+        lawSet = hasLawLayer(laws) ? LawLayer.of(lawText(laws)).lawCompletion().laws() : null;
+    }
+
+    /** @return whether the {@code laws} parameter puts a law layer after the head */
+    static boolean hasLawLayer(String laws) {
+        return !laws.equals("none") && !laws.equals("penalty");
+    }
+
+    /** @return the hidden layer widths of {@code headline}, {@code small} or {@code large} */
+    static int[] hidden(String shape) {
+        switch (shape) {
+            case "headline":
+                return new int[] {256, 256, 256, 256};
+            case "small":
+                return new int[] {128, 128};
+            case "large":
+                return new int[] {1024, 1024, 1024, 1024};
+            default:
+                throw new IllegalArgumentException("shape: expected headline, small or large, found " + shape);
+        }
+    }
+
+    /**
+     * The float32 network of this suite: dense ReLU layers of {@link #hidden(String)}, an identity head as wide as
+     * the free outputs, then the law layer of the tier ({@code none}: none, 60-wide head; {@code penalty}: the
+     * soft-penalty loss on the constant-affine laws), then the loss layer.
+     *
+     * @param laws  none, constant-affine, affine, nonlinear or penalty
+     * @param shape headline, small or large
+     * @return an initialised network (seed 42, Adam 1e-3, workspaces enabled)
+     */
+    static MultiLayerNetwork network(String laws, String shape) {
         Nd4j.setDefaultDataTypes(DataType.FLOAT, DataType.FLOAT);
-        int[] hidden = shape.equals("headline") ? new int[] {256, 256, 256, 256} : new int[] {128, 128};
-        boolean lawLayer = !laws.equals("none") && !laws.equals("penalty");
+        boolean lawLayer = hasLawLayer(laws);
         LawLayer layer = lawLayer ? LawLayer.of(lawText(laws)) : null;
         int head = lawLayer ? layer.lawCompletion().freeWidth() : OUTPUTS;
         NeuralNetConfiguration.ListBuilder list = new NeuralNetConfiguration.Builder()
@@ -102,7 +137,7 @@ public class TrainingStepBench {
                 .trainingWorkspaceMode(WorkspaceMode.ENABLED).inferenceWorkspaceMode(WorkspaceMode.ENABLED)
                 .list();
         int in = FEATURES;
-        for (int h : hidden) {
+        for (int h : hidden(shape)) {
             list.layer(new DenseLayer.Builder().nIn(in).nOut(h).activation(Activation.RELU).build());
             in = h;
         }
@@ -116,8 +151,13 @@ public class TrainingStepBench {
         } else {
             list.layer(new LossLayer.Builder(LossFunctions.LossFunction.MSE).activation(Activation.IDENTITY).build());
         }
-        net = new MultiLayerNetwork(list.build());
-        net.init();
+        MultiLayerNetwork network = new MultiLayerNetwork(list.build());
+        network.init();
+        return network;
+    }
+
+    /** @return the batch of this suite: {@value #BATCH} rows of uniform features and labels in [-1, 1), seed 7 */
+    static DataSet data() {
         SplittableRandom random = new SplittableRandom(7);
         float[] x = new float[BATCH * FEATURES];
         float[] y = new float[BATCH * OUTPUTS];
@@ -127,8 +167,7 @@ public class TrainingStepBench {
         for (int i = 0; i < y.length; i++) {
             y[i] = (float) (2 * random.nextDouble() - 1);
         }
-        data = new DataSet(Nd4j.create(x, new long[] {BATCH, FEATURES}), Nd4j.create(y, new long[] {BATCH, OUTPUTS}));
-        lawSet = lawLayer ? layer.lawCompletion().laws() : null;
+        return new DataSet(Nd4j.create(x, new long[] {BATCH, FEATURES}), Nd4j.create(y, new long[] {BATCH, OUTPUTS}));
     }
 
     /** One optimiser step on the batch. */
