@@ -25,9 +25,9 @@ public final class Units {
             return named;
         }
         for (String n : PER_LENGTH) {
-            Dimension named = UnitTable.lookup(n).dimension();
+            Dimension base = UnitTable.lookup(n).dimension();
             for (int k = -3; k <= 3; k++) {
-                if (k != 0 && named.times(METRE.pow(k)).equals(dimension)) {
+                if (k != 0 && base.times(METRE.pow(k)).equals(dimension)) {
                     return new Unit(n + (k == 1 ? " m" : " m" + k), 1.0, dimension);
                 }
             }
