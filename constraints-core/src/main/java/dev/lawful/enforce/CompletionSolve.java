@@ -372,20 +372,29 @@ final class CompletionSolve {
                     nanGradients(s, gz, gx);
                     continue;
                 }
+                // ḡ_z = ḡ_f + Mᵀ ḡ_c and ḡ_x = Nᵀ ḡ_c, a row of M (N) at a time so both arrays are read in order
+                int zo = s * nFree;
                 for (int f = 0; f < nFree; f++) {
-                    double v = g[s * nOut + free[f]];
-                    for (int r = 0; r < n; r++) {
-                        v += foldM[r * nFree + f] * g[s * nOut + completed[r]];
-                    }
-                    gz[s * nFree + f] = v;
+                    gz[zo + f] = g[s * nOut + free[f]];
                 }
                 if (gx != null) {
-                    for (int i = 0; i < nIn; i++) {
-                        double v = 0;
-                        for (int r = 0; r < n; r++) {
-                            v += foldN[r * nIn + i] * g[s * nOut + completed[r]];
+                    Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
+                }
+                for (int r = 0; r < n; r++) {
+                    double gc = g[s * nOut + completed[r]];
+                    if (gc == 0) {
+                        continue;
+                    }
+                    int mo = r * nFree;
+                    for (int f = 0; f < nFree; f++) {
+                        gz[zo + f] += foldM[mo + f] * gc;
+                    }
+                    if (gx != null) {
+                        int no = r * nIn;
+                        int xo = s * nIn;
+                        for (int i = 0; i < nIn; i++) {
+                            gx[xo + i] += foldN[no + i] * gc;
                         }
-                        gx[s * nIn + i] = v;
                     }
                 }
             }
