@@ -563,6 +563,72 @@ public final class LawEvaluator {
         run(p, x, y, batch, residuals, scales, jacobianY, jacobianX, workspace);
     }
 
+    /**
+     * The Jacobian entries dC/dy of some output columns only: what a solver for those outputs needs (a Newton step
+     * or an affine solve for the completed outputs reads nothing else), at a fraction of the cost of all of them
+     * when the laws involve many other outputs.
+     *
+     * @param outputColumns the output columns (0 .. outputWidth − 1) whose entries are computed
+     * @return an evaluation of residuals, scales and those entries; immutable and thread-safe
+     * @throws IllegalArgumentException when a column is out of range
+     */
+    public Partial partial(int[] outputColumns) {
+        boolean[] keep = new boolean[outputWidth];
+        for (int c : outputColumns) {
+            if (c < 0 || c >= outputWidth) {
+                throw new IllegalArgumentException("output column " + c + " is out of range 0 .. "
+                        + (outputWidth - 1));
+            }
+            keep[c] = true;
+        }
+        return new Partial(keep);
+    }
+
+    /**
+     * Residuals, scales and the dC/dy entries of chosen output columns ({@link #partial(int[])}). Entries of other
+     * columns in the Jacobian buffer are left as they were.
+     */
+    public final class Partial {
+        private final boolean[] keep;
+        private final java.util.concurrent.atomic.AtomicReferenceArray<Program> partialPrograms =
+                new java.util.concurrent.atomic.AtomicReferenceArray<>(4);
+
+        private Partial(boolean[] keep) {
+            this.keep = keep;
+        }
+
+        /**
+         * Like {@link LawEvaluator#evaluate(double[], double[], int, double[], double[], double[], double[],
+         * Workspace)} without dC/dx, computing only the chosen columns' entries of {@code jacobianY} (same layout).
+         *
+         * @param jacobianY output buffer of {@code batch * outputNonzeros()} values (required)
+         * @throws IllegalArgumentException when an array is shorter than the batch needs
+         */
+        public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales,
+                             double[] jacobianY, Workspace workspace) {
+            check(x, y, batch, residuals, scales, jacobianY, null);
+            int mask = (residuals != null ? 1 : 0) | (scales != null ? 2 : 0);
+            Program p = partialPrograms.get(mask);
+            if (p == null) {
+                List<Root> wanted = new ArrayList<>();
+                if (residuals != null) {
+                    wanted.addAll(roots(TO_RESIDUAL));
+                }
+                if (scales != null) {
+                    wanted.addAll(roots(TO_SCALE));
+                }
+                for (Root r : roots(TO_JY)) {
+                    if (keep[outColumns[r.index()]]) {
+                        wanted.add(r);
+                    }
+                }
+                partialPrograms.compareAndSet(mask, null, assemble(wanted, pool));
+                p = partialPrograms.get(mask);
+            }
+            run(p, x, y, batch, residuals, scales, jacobianY, null, workspace);
+        }
+    }
+
     /** Like {@link #evaluate(double[], double[], int, double[], double[], double[], double[], Workspace)}. */
     public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales, double[] jacobianY,
                          double[] jacobianX) {

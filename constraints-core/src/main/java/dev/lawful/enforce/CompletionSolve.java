@@ -18,6 +18,8 @@ final class CompletionSolve {
     private final int nFree;
     private final int[] completed;
     private final LawEvaluator evaluator;
+    /** Residuals, scales and dC/dy of the completed columns only: all a forward solve reads. */
+    private final LawEvaluator.Partial completedJacobian;
     private final int[] boundFactor;
     private final int[] entryLaw;
     private final int[] entryRole;
@@ -44,6 +46,7 @@ final class CompletionSolve {
         this.nFree = c.nFree;
         this.completed = c.completed;
         this.evaluator = c.evaluator;
+        this.completedJacobian = c.evaluator.partial(c.completed);
         this.boundFactor = c.boundFactor;
         this.entryLaw = c.entryLaw;
         this.entryRole = c.entryRole;
@@ -92,7 +95,7 @@ final class CompletionSolve {
             if (stageLu[g] != null) {
                 evaluator.residuals(x, full, batch, ws.residual, null, ws.evaluation);
             } else {
-                evaluator.evaluate(x, full, batch, ws.residual, null, ws.jy, null, ws.evaluation);
+                completedJacobian.evaluate(x, full, batch, ws.residual, null, ws.jy, ws.evaluation);
             }
             for (int s = 0; s < batch; s++) {
                 if (st[s] != SampleStatus.OK) {
@@ -267,7 +270,7 @@ final class CompletionSolve {
             }
         }
         for (int iteration = 0; iteration <= 4 * maxIterations && remaining > 0; iteration++) {
-            evaluator.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, null, ws.evaluation);
+            completedJacobian.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, ws.evaluation);
             remaining = 0;
             for (int s = 0; s < batch; s++) {
                 if (st[s] != SampleStatus.NOT_CONVERGED || length[s] < 0) {

@@ -450,4 +450,55 @@ class EvaluatorTest {
         laws.evaluator().residuals(new double[] {0, Double.POSITIVE_INFINITY}, new double[] {1}, 1, res, scales);
         assertEquals(Double.NEGATIVE_INFINITY, res[0], "residual of y = exp(0) + inf");
     }
+
+    @Test
+    void aPartialJacobianHasTheFullEvaluationsEntriesForItsColumnsAndLeavesTheOthers() {
+        LawSet laws = LawSet.parse("partial.law", String.join("\n",
+                "input a[2]",
+                "output y[4]",
+                "law one: y[0]^3 + a[0]*y[1] = sin(y[2]) * y[3]",
+                "law two: y[1] * y[3] = a[1] + exp(y[0])",
+                ""));
+        LawEvaluator ev = laws.evaluator();
+        Random r = new Random(17);
+        int batch = 70;
+        double[] x = new double[batch * 2];
+        double[] y = new double[batch * 4];
+        for (int i = 0; i < x.length; i++) {
+            x[i] = r.nextDouble() - 0.5;
+        }
+        for (int i = 0; i < y.length; i++) {
+            y[i] = r.nextDouble() * 2 - 1;
+        }
+        int nnz = ev.outputNonzeros();
+        double[] res = new double[batch * 2];
+        double[] scale = new double[batch * 2];
+        double[] jy = new double[batch * nnz];
+        ev.evaluate(x, y, batch, res, scale, jy, null);
+        double[] pres = new double[batch * 2];
+        double[] pscale = new double[batch * 2];
+        double[] pjy = new double[batch * nnz];
+        Arrays.fill(pjy, 42.0);
+        ev.partial(new int[] {1, 3}).evaluate(x, y, batch, pres, pscale, pjy, ev.newWorkspace());
+        // the reference is the full evaluation, itself checked against finite differences elsewhere
+        assertArrayEquals(res, pres);
+        assertArrayEquals(scale, pscale);
+        int kept = 0;
+        for (int law = 0; law < 2; law++) {
+            int[] cols = ev.outputColumns(law);
+            for (int k = 0; k < cols.length; k++) {
+                for (int s = 0; s < batch; s++) {
+                    int e = s * nnz + ev.outputOffset(law) + k;
+                    if (cols[k] == 1 || cols[k] == 3) {
+                        assertEquals(jy[e], pjy[e], "law " + law + ", column " + cols[k]);
+                        kept++;
+                    } else {
+                        assertEquals(42.0, pjy[e], "an entry of another column is left as it was");
+                    }
+                }
+            }
+        }
+        assertEquals(4 * batch, kept);
+        assertThrows(IllegalArgumentException.class, () -> ev.partial(new int[] {4}));
+    }
 }
