@@ -134,6 +134,13 @@ public final class Completion {
         double[] gyFloat;
         double[] gz;
         double[] gx;
+        /** Newton's still-active samples, gathered: their indices, inputs, outputs and evaluations. */
+        int[] active;
+        double[] activeX;
+        double[] activeY;
+        double[] activeResidual;
+        double[] activeScale;
+        double[] activeJy;
 
         Workspace(Completion c) {
             this.evaluation = c.evaluator.newWorkspace();
@@ -170,6 +177,12 @@ public final class Completion {
             gyFloat = new double[batch * c.nOut];
             gz = new double[batch * c.nFree];
             gx = new double[batch * c.nIn];
+            active = new int[batch];
+            activeX = new double[batch * c.nIn];
+            activeY = new double[batch * c.nOut];
+            activeResidual = new double[batch * c.n];
+            activeScale = new double[batch * c.n];
+            activeJy = new double[batch * c.evaluator.outputNonzeros()];
         }
     }
 

@@ -270,7 +270,7 @@ final class CompletionSolve {
             }
         }
         for (int iteration = 0; iteration <= 4 * maxIterations && remaining > 0; iteration++) {
-            completedJacobian.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, ws.evaluation);
+            evaluateActive(x, full, batch, st, length, ws);
             remaining = 0;
             for (int s = 0; s < batch; s++) {
                 if (st[s] != SampleStatus.NOT_CONVERGED || length[s] < 0) {
@@ -331,6 +331,46 @@ final class CompletionSolve {
                 ws.iterations[s]++;
                 remaining++;
             }
+        }
+    }
+
+    /**
+     * Residuals, scales and the completed columns' dC/dy of the samples Newton still iterates on, into their rows of
+     * the workspace (other rows are left as they were). Samples converge at different iterations, so once a quarter
+     * of the batch is done the rest are gathered into contiguous rows and evaluated alone: the batch then costs the
+     * sum of its samples' iterations rather than the batch size times the slowest sample's.
+     */
+    private void evaluateActive(double[] x, double[] full, int batch, byte[] st, double[] length,
+            Completion.Workspace ws) {
+        int[] active = ws.active;
+        int count = 0;
+        for (int s = 0; s < batch; s++) {
+            if (st[s] == SampleStatus.NOT_CONVERGED && length[s] >= 0) {
+                active[count++] = s;
+            }
+        }
+        if (4 * count >= 3 * batch) {
+            completedJacobian.evaluate(x, full, batch, ws.residual, ws.scale, ws.jy, ws.evaluation);
+            return;
+        }
+        if (count == 0) {
+            return;
+        }
+        int nnz = evaluator.outputNonzeros();
+        for (int a = 0; a < count; a++) {
+            int s = active[a];
+            if (nIn > 0) {
+                System.arraycopy(x, s * nIn, ws.activeX, a * nIn, nIn);
+            }
+            System.arraycopy(full, s * nOut, ws.activeY, a * nOut, nOut);
+        }
+        completedJacobian.evaluate(nIn > 0 ? ws.activeX : x, ws.activeY, count, ws.activeResidual, ws.activeScale,
+                ws.activeJy, ws.evaluation);
+        for (int a = 0; a < count; a++) {
+            int s = active[a];
+            System.arraycopy(ws.activeResidual, a * n, ws.residual, s * n, n);
+            System.arraycopy(ws.activeScale, a * n, ws.scale, s * n, n);
+            System.arraycopy(ws.activeJy, a * nnz, ws.jy, s * nnz, nnz);
         }
     }
 
