@@ -3,12 +3,10 @@ package dev.lawful.dl4j;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.enforce.Penalty;
 import java.util.Arrays;
-import java.util.List;
 import java.util.Objects;
 import org.deeplearning4j.nn.conf.graph.GraphVertex;
 import org.deeplearning4j.nn.conf.inputs.InputType;
 import org.deeplearning4j.nn.conf.inputs.InvalidInputTypeException;
-import org.deeplearning4j.nn.conf.memory.LayerMemoryReport;
 import org.deeplearning4j.nn.conf.memory.MemoryReport;
 import org.deeplearning4j.nn.graph.ComputationGraph;
 import org.nd4j.linalg.api.buffer.DataType;
@@ -36,6 +34,7 @@ import org.nd4j.linalg.dataset.api.preprocessor.DataNormalization;
  */
 public class LawPenaltyVertex extends GraphVertex {
     private static final long serialVersionUID = 1L;
+    private static final String WHO = "law penalty vertex";
 
     private LawSpec spec;
     private double penaltyWeight = 1.0;
@@ -246,35 +245,21 @@ public class LawPenaltyVertex extends GraphVertex {
                     + ", found " + (vertexInputs == null ? 0 : vertexInputs.length));
         }
         if (count == 2) {
-            check(vertexInputs[0], laws.inputWidth(), "input 0 (the law inputs x)", laws.inputNames(),
+            NdArrays.checkFeedForward(WHO, vertexInputs[0], laws.inputWidth(), "input 0 (the law inputs x)",
+                    laws.inputNames(),
                     "connect the network inputs the laws declare, in declared order");
         }
-        check(vertexInputs[count - 1], laws.outputWidth(), "input " + (count - 1) + " (the predicted outputs)",
+        NdArrays.checkFeedForward(WHO, vertexInputs[count - 1], laws.outputWidth(),
+                "input " + (count - 1) + " (the predicted outputs)",
                 laws.outputNames(), "give the head one output per declared output, in declared order");
         return InputType.feedForward(pe.lawCount());
-    }
-
-    private static void check(InputType t, int width, String what, List<String> names, String fix) {
-        if (t == null || t.getType() != InputType.Type.FF) {
-            throw new InvalidInputTypeException("law penalty vertex: " + what + " must be feed-forward of width "
-                    + width + ", found " + t);
-        }
-        long found = ((InputType.InputTypeFeedForward) t).getSize();
-        if (found != width) {
-            throw new InvalidInputTypeException("law penalty vertex: " + what + " has " + found + " columns but the"
-                    + " law set needs " + width + " (" + String.join(", ", names) + "); " + fix);
-        }
     }
 
     /** @return a report of no parameters and one activation array of the law count per example */
     @Override
     public MemoryReport getMemoryReport(InputType... inputTypes) {
         InputType out = getOutputType(-1, inputTypes);
-        return new LayerMemoryReport.Builder(null, LawPenaltyVertex.class, inputTypes[inputTypes.length - 1], out)
-                .standardMemory(0, 0)
-                .workingMemory(0, 0, 0, out.arrayElementsPerExample())
-                .cacheMemory(MemoryReport.CACHE_MODE_ALL_ZEROS, MemoryReport.CACHE_MODE_ALL_ZEROS)
-                .build();
+        return NdArrays.vertexMemory(LawPenaltyVertex.class, inputTypes[inputTypes.length - 1], out);
     }
 
     /** @return the spec and λ */

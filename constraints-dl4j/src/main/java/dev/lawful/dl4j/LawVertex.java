@@ -5,7 +5,6 @@ import java.util.Objects;
 import org.deeplearning4j.nn.conf.graph.GraphVertex;
 import org.deeplearning4j.nn.conf.inputs.InputType;
 import org.deeplearning4j.nn.conf.inputs.InvalidInputTypeException;
-import org.deeplearning4j.nn.conf.memory.LayerMemoryReport;
 import org.deeplearning4j.nn.conf.memory.MemoryReport;
 import org.deeplearning4j.nn.graph.ComputationGraph;
 import org.nd4j.linalg.api.buffer.DataType;
@@ -209,34 +208,18 @@ public class LawVertex extends GraphVertex {
                     + c.inputWidth() + ") and the head's free outputs z (width " + c.freeWidth() + "), found "
                     + (vertexInputs == null ? 0 : vertexInputs.length));
         }
-        check(vertexInputs[0], c.inputWidth(), "input 0 (the law inputs x)", String.join(", ",
-                c.laws().inputNames()), "connect the network inputs the laws declare, in declared order");
-        check(vertexInputs[1], c.freeWidth(), "input 1 (the head's free outputs z)", String.join(", ", c.freeNames()),
-                NdArrays.headFix(c));
+        NdArrays.checkFeedForward("law vertex", vertexInputs[0], c.inputWidth(), "input 0 (the law inputs x)",
+                c.laws().inputNames(), "connect the network inputs the laws declare, in declared order");
+        NdArrays.checkFeedForward("law vertex", vertexInputs[1], c.freeWidth(), "input 1 (the head's free outputs z)",
+                c.freeNames(), NdArrays.headFix(c));
         return InputType.feedForward(c.outputWidth());
-    }
-
-    private static void check(InputType t, int width, String what, String names, String fix) {
-        if (t == null || t.getType() != InputType.Type.FF) {
-            throw new InvalidInputTypeException("law vertex: " + what + " must be feed-forward of width " + width
-                    + ", found " + t);
-        }
-        long found = ((InputType.InputTypeFeedForward) t).getSize();
-        if (found != width) {
-            throw new InvalidInputTypeException("law vertex: " + what + " has " + found + " columns but the law set"
-                    + " needs " + width + " (" + names + "); " + fix);
-        }
     }
 
     /** @return a report of no parameters and one activation array of the output width per example */
     @Override
     public MemoryReport getMemoryReport(InputType... inputTypes) {
         InputType out = getOutputType(-1, inputTypes);
-        return new LayerMemoryReport.Builder(null, LawVertex.class, inputTypes[1], out)
-                .standardMemory(0, 0)
-                .workingMemory(0, 0, 0, out.arrayElementsPerExample())
-                .cacheMemory(MemoryReport.CACHE_MODE_ALL_ZEROS, MemoryReport.CACHE_MODE_ALL_ZEROS)
-                .build();
+        return NdArrays.vertexMemory(LawVertex.class, inputTypes[1], out);
     }
 
     /** @return the spec */

@@ -4,6 +4,10 @@ import dev.lawful.enforce.Completion;
 import java.util.List;
 import org.deeplearning4j.nn.workspace.ArrayType;
 import org.deeplearning4j.nn.workspace.LayerWorkspaceMgr;
+import org.deeplearning4j.nn.conf.inputs.InputType;
+import org.deeplearning4j.nn.conf.inputs.InvalidInputTypeException;
+import org.deeplearning4j.nn.conf.memory.LayerMemoryReport;
+import org.deeplearning4j.nn.conf.memory.MemoryReport;
 import org.nd4j.linalg.api.buffer.DataType;
 import org.nd4j.linalg.api.memory.MemoryWorkspace;
 import org.nd4j.linalg.api.ndarray.INDArray;
@@ -218,5 +222,34 @@ final class NdArrays {
         for (int i = 0; i < g.length; i++) {
             g[i] *= s.scale(i % w);
         }
+    }
+
+    /**
+     * Checks one input type of a vertex: feed-forward, of {@code width} columns.
+     *
+     * @param who   "law vertex" or similar, the start of the message
+     * @param names the element names the columns stand for
+     * @param fix   what the user should change, appended to the message
+     * @throws InvalidInputTypeException naming both widths and the fix
+     */
+    static void checkFeedForward(String who, InputType t, int width, String what, List<String> names, String fix) {
+        if (t == null || t.getType() != InputType.Type.FF) {
+            throw new InvalidInputTypeException(who + ": " + what + " must be feed-forward of width " + width
+                    + ", found " + t);
+        }
+        long found = ((InputType.InputTypeFeedForward) t).getSize();
+        if (found != width) {
+            throw new InvalidInputTypeException(who + ": " + what + " has " + found + " columns but the law set"
+                    + " needs " + width + " (" + String.join(", ", names) + "); " + fix);
+        }
+    }
+
+    /** @return the memory report of a parameter-free vertex: one activation array of {@code out} per example */
+    static MemoryReport vertexMemory(Class<?> type, InputType in, InputType out) {
+        return new LayerMemoryReport.Builder(null, type, in, out)
+                .standardMemory(0, 0)
+                .workingMemory(0, 0, 0, out.arrayElementsPerExample())
+                .cacheMemory(MemoryReport.CACHE_MODE_ALL_ZEROS, MemoryReport.CACHE_MODE_ALL_ZEROS)
+                .build();
     }
 }
