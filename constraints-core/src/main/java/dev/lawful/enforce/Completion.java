@@ -653,6 +653,22 @@ public final class Completion {
      * @throws IllegalArgumentException when an array is too short
      */
     public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace ws) {
+        forward(x, z, batch, y, status, ws, BoundCheck.EVERY_SAMPLE);
+    }
+
+    /**
+     * Completes a batch in double precision, certifying the result or not as {@code check} says (see
+     * {@link BoundCheck}: {@link BoundCheck#SKIP} is for training, where it saves one evaluation of every law per
+     * sample).
+     *
+     * @see #forward(double[], double[], int, double[], byte[], Workspace)
+     */
+    public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace ws,
+            BoundCheck check) {
+        if (check == null) {
+            throw new IllegalArgumentException("check must be BoundCheck.EVERY_SAMPLE or BoundCheck.SKIP, not null");
+        }
+        boolean certify = check == BoundCheck.EVERY_SAMPLE;
         need("x", x, (long) batch * nIn);
         need("z", z, (long) batch * nFree);
         need("y", y, (long) batch * nOut);
@@ -664,25 +680,25 @@ public final class Completion {
         }
         ws.ensure(this, batch);
         double[] full = ws.y;
-        for (int s = 0; s < batch; s++) {
-            for (int f = 0; f < nFree; f++) {
-                full[s * nOut + free[f]] = z[s * nFree + f];
-            }
-        }
         byte[] st = ws.status;
-        Arrays.fill(st, 0, batch, SampleStatus.OK);
-        solve.markNonFinite(x, z, batch, st);
+        solve.scatterFree(x, z, batch, full, st);
         switch (tier) {
             case CONSTANT_AFFINE:
                 solve.forwardConstantAffine(x, z, batch, full);
-                solve.refineAll(x, batch, full, st, ws);
+                if (certify) {
+                    solve.refineAll(x, batch, full, st, ws);
+                }
                 break;
             case AFFINE:
-                solve.forwardAffine(x, batch, full, st, ws);
+                solve.forwardAffine(x, batch, full, st, ws, certify);
                 break;
             default:
-                solve.forwardNewton(x, batch, full, st, ws);
+                solve.forwardNewton(x, batch, full, st, ws, certify);
                 break;
+        }
+        if (!certify) {
+            // the certifying evaluation would have caught an overflow as a residual that is not finite
+            solve.markNonFiniteResults(batch, full, st);
         }
         finish(batch, full, st, y, status);
     }
@@ -694,6 +710,13 @@ public final class Completion {
      * @see #forward(double[], double[], int, double[], byte[], Workspace)
      */
     public void forward(float[] x, float[] z, int batch, float[] y, byte[] status, Workspace ws) {
+        forward(x, z, batch, y, status, ws, BoundCheck.EVERY_SAMPLE);
+    }
+
+    /**
+     * Float variant of {@link #forward(double[], double[], int, double[], byte[], Workspace, BoundCheck)}.
+     */
+    public void forward(float[] x, float[] z, int batch, float[] y, byte[] status, Workspace ws, BoundCheck check) {
         need("x", x, (long) batch * nIn);
         need("z", z, (long) batch * nFree);
         need("y", y, (long) batch * nOut);
@@ -703,7 +726,7 @@ public final class Completion {
         ws.ensure(this, batch);
         widen(x, ws.x, batch * nIn);
         widen(z, ws.z, batch * nFree);
-        forward(ws.x, ws.z, batch, ws.out, status, ws);
+        forward(ws.x, ws.z, batch, ws.out, status, ws, check);
         for (int i = 0; i < batch * nOut; i++) {
             y[i] = (float) ws.out[i];
         }
@@ -718,8 +741,10 @@ public final class Completion {
         for (int s = 0; s < batch; s++) {
             boolean bad = st[s] != SampleStatus.OK;
             if (layout == Layout.DECLARED) {
-                for (int o = 0; o < nOut; o++) {
-                    y[s * nOut + o] = bad ? Double.NaN : full[s * nOut + o];
+                if (bad) {
+                    Arrays.fill(y, s * nOut, (s + 1) * nOut, Double.NaN);
+                } else {
+                    System.arraycopy(full, s * nOut, y, s * nOut, nOut);
                 }
             } else {
                 for (int f = 0; f < nFree; f++) {
@@ -792,13 +817,18 @@ public final class Completion {
             return;
         }
         ws.ensure(this, batch);
-        double[] full = ws.y;
-        double[] g = ws.g;
-        for (int s = 0; s < batch; s++) {
-            for (int c = 0; c < nOut; c++) {
-                int o = outputAt(c);
-                full[s * nOut + o] = y[s * nOut + c];
-                g[s * nOut + o] = gy[s * nOut + c];
+        double[] full = y;
+        double[] g = gy;
+        if (layout != Layout.DECLARED) {
+            // the solve reads outputs and gradients in declared order
+            full = ws.y;
+            g = ws.g;
+            for (int s = 0; s < batch; s++) {
+                for (int c = 0; c < nOut; c++) {
+                    int o = outputAt(c);
+                    full[s * nOut + o] = y[s * nOut + c];
+                    g[s * nOut + o] = gy[s * nOut + c];
+                }
             }
         }
         int singular = solve.backward(tier == Tier.CONSTANT_AFFINE, policy == OnBadSample.THROW, x, batch, full, g, gz,

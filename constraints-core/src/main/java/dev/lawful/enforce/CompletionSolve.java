@@ -69,20 +69,52 @@ final class CompletionSolve {
 
     void forwardConstantAffine(double[] x, double[] z, int batch, double[] full) {
         for (int s = 0; s < batch; s++) {
-            for (int r = 0; r < n; r++) {
+            int zo = s * nFree;
+            int xo = s * nIn;
+            int yo = s * nOut;
+            int r = 0;
+            // four completed outputs per pass over the sample's free outputs: four independent running sums, so
+            // the additions overlap instead of waiting on one another
+            for (; r + 4 <= n; r += 4) {
+                double v0 = foldK[r];
+                double v1 = foldK[r + 1];
+                double v2 = foldK[r + 2];
+                double v3 = foldK[r + 3];
+                int m0 = r * nFree;
+                for (int f = 0; f < nFree; f++) {
+                    double zf = z[zo + f];
+                    v0 += foldM[m0 + f] * zf;
+                    v1 += foldM[m0 + nFree + f] * zf;
+                    v2 += foldM[m0 + 2 * nFree + f] * zf;
+                    v3 += foldM[m0 + 3 * nFree + f] * zf;
+                }
+                int n0 = r * nIn;
+                for (int i = 0; i < nIn; i++) {
+                    double xi = x[xo + i];
+                    v0 += foldN[n0 + i] * xi;
+                    v1 += foldN[n0 + nIn + i] * xi;
+                    v2 += foldN[n0 + 2 * nIn + i] * xi;
+                    v3 += foldN[n0 + 3 * nIn + i] * xi;
+                }
+                full[yo + completed[r]] = v0;
+                full[yo + completed[r + 1]] = v1;
+                full[yo + completed[r + 2]] = v2;
+                full[yo + completed[r + 3]] = v3;
+            }
+            for (; r < n; r++) {
                 double v = foldK[r];
                 for (int f = 0; f < nFree; f++) {
-                    v += foldM[r * nFree + f] * z[s * nFree + f];
+                    v += foldM[r * nFree + f] * z[zo + f];
                 }
                 for (int i = 0; i < nIn; i++) {
-                    v += foldN[r * nIn + i] * x[s * nIn + i];
+                    v += foldN[r * nIn + i] * x[xo + i];
                 }
-                full[s * nOut + completed[r]] = v;
+                full[yo + completed[r]] = v;
             }
         }
     }
 
-    void forwardAffine(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws) {
+    void forwardAffine(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws, boolean certify) {
         // C is affine in y_c: per stage, C(y_stage = 0) + B y_stage = 0, so y_stage = −B⁻¹ C(0); then one
         // refinement with the same B
         for (int g = 0; g < stages.stages.size(); g++) {
@@ -109,7 +141,9 @@ final class CompletionSolve {
             }
         }
         // every stage's block factors are kept (at their own offsets), so the refinement can reuse them
-        refineAll(x, batch, full, st, ws);
+        if (certify) {
+            refineAll(x, batch, full, st, ws);
+        }
     }
 
     /**
@@ -219,14 +253,16 @@ final class CompletionSolve {
         for (int j = 0; j < count; j++) {
             int i = subset == null ? j : subset[j];
             double r = ws.residual[s * n + i];
-            if (!(Math.abs(r) <= boundFactor[i] * EPS * ws.scale[s * n + i])) {
+            double scale = ws.scale[s * n + i];
+            // an infinite scale would admit any residual: an output that overflowed is never within the bound
+            if (!(Math.abs(r) <= boundFactor[i] * EPS * scale) || scale == Double.POSITIVE_INFINITY) {
                 return false;
             }
         }
         return true;
     }
 
-    void forwardNewton(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws) {
+    void forwardNewton(double[] x, int batch, double[] full, byte[] st, Completion.Workspace ws, boolean certify) {
         // starting values: guesses where the law text gives them, the generic start values elsewhere
         for (int s = 0; s < batch; s++) {
             for (int k = 0; k < n; k++) {
@@ -246,7 +282,11 @@ final class CompletionSolve {
         for (int g = 0; g < stages.stages.size(); g++) {
             newtonStage(x, batch, full, st, ws, g);
         }
-        verify(x, batch, full, st, ws);
+        // each stage stopped with its own laws within the bound and later stages do not move its outputs; the
+        // final pass re-checks every law of every sample in one evaluation
+        if (certify) {
+            verify(x, batch, full, st, ws);
+        }
     }
 
     /**
@@ -385,18 +425,41 @@ final class CompletionSolve {
     }
 
 
-    void markNonFinite(double[] x, double[] z, int batch, byte[] st) {
+    /** Marks as not converged every sample still OK whose completed outputs are not all finite. */
+    void markNonFiniteResults(int batch, double[] full, byte[] st) {
         for (int s = 0; s < batch; s++) {
-            boolean bad = false;
-            for (int i = 0; i < nIn && !bad; i++) {
-                bad = !Double.isFinite(x[s * nIn + i]);
+            if (st[s] != SampleStatus.OK) {
+                continue;
             }
-            for (int f = 0; f < nFree && !bad; f++) {
-                bad = !Double.isFinite(z[s * nFree + f]);
+            for (int k = 0; k < n; k++) {
+                if (!Double.isFinite(full[s * nOut + completed[k]])) {
+                    st[s] = SampleStatus.NOT_CONVERGED;
+                    break;
+                }
             }
-            if (bad) {
-                st[s] = SampleStatus.NOT_FINITE;
+        }
+    }
+
+    /**
+     * Writes the free outputs into their columns of the full rows and sets each sample's status: OK, or NOT_FINITE
+     * when an input or free output is NaN or infinite.
+     */
+    void scatterFree(double[] x, double[] z, int batch, double[] full, byte[] st) {
+        for (int s = 0; s < batch; s++) {
+            // v·0 is 0 (or −0) for a finite v and NaN otherwise, so one sum tests the whole row without a branch
+            double probe = 0;
+            int zo = s * nFree;
+            int yo = s * nOut;
+            for (int f = 0; f < nFree; f++) {
+                double v = z[zo + f];
+                full[yo + free[f]] = v;
+                probe += v * 0.0;
             }
+            int xo = s * nIn;
+            for (int i = 0; i < nIn; i++) {
+                probe += x[xo + i] * 0.0;
+            }
+            st[s] = probe == 0 ? SampleStatus.OK : SampleStatus.NOT_FINITE;
         }
     }
 
@@ -415,19 +478,37 @@ final class CompletionSolve {
                     nanGradients(s, gz, gx);
                     continue;
                 }
-                // ḡ_z = ḡ_f + Mᵀ ḡ_c and ḡ_x = Nᵀ ḡ_c, a row of M (N) at a time so both arrays are read in order
+                // ḡ_z = ḡ_f + Mᵀ ḡ_c and ḡ_x = Nᵀ ḡ_c: rows of M (N) are read in order, four per pass over ḡ_z
                 int zo = s * nFree;
+                int go = s * nOut;
                 for (int f = 0; f < nFree; f++) {
-                    gz[zo + f] = g[s * nOut + free[f]];
+                    gz[zo + f] = g[go + free[f]];
                 }
                 if (gx != null) {
                     Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
                 }
-                for (int r = 0; r < n; r++) {
-                    double gc = g[s * nOut + completed[r]];
-                    if (gc == 0) {
-                        continue;
+                int r = 0;
+                for (; r + 4 <= n; r += 4) {
+                    double g0 = g[go + completed[r]];
+                    double g1 = g[go + completed[r + 1]];
+                    double g2 = g[go + completed[r + 2]];
+                    double g3 = g[go + completed[r + 3]];
+                    int m0 = r * nFree;
+                    for (int f = 0; f < nFree; f++) {
+                        gz[zo + f] = gz[zo + f] + foldM[m0 + f] * g0 + foldM[m0 + nFree + f] * g1
+                                + foldM[m0 + 2 * nFree + f] * g2 + foldM[m0 + 3 * nFree + f] * g3;
                     }
+                    if (gx != null) {
+                        int n0 = r * nIn;
+                        int xo = s * nIn;
+                        for (int i = 0; i < nIn; i++) {
+                            gx[xo + i] = gx[xo + i] + foldN[n0 + i] * g0 + foldN[n0 + nIn + i] * g1
+                                    + foldN[n0 + 2 * nIn + i] * g2 + foldN[n0 + 3 * nIn + i] * g3;
+                        }
+                    }
+                }
+                for (; r < n; r++) {
+                    double gc = g[go + completed[r]];
                     int mo = r * nFree;
                     for (int f = 0; f < nFree; f++) {
                         gz[zo + f] += foldM[mo + f] * gc;
@@ -491,12 +572,13 @@ final class CompletionSolve {
     }
 
     private boolean finiteRow(double[] full, double[] g, int s) {
+        // v·0 is ±0 for a finite v and NaN otherwise: one branch-free sum tests both rows
+        double probe = 0;
+        int o0 = s * nOut;
         for (int o = 0; o < nOut; o++) {
-            if (!Double.isFinite(full[s * nOut + o]) || !Double.isFinite(g[s * nOut + o])) {
-                return false;
-            }
+            probe += full[o0 + o] * 0.0 + g[o0 + o] * 0.0;
         }
-        return true;
+        return probe == 0;
     }
 
     private void nanGradients(int s, double[] gz, double[] gx) {

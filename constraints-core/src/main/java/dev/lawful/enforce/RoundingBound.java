@@ -128,7 +128,8 @@ public final class RoundingBound {
                     }
                 }
                 bounds[s * n + i] = b;
-                if (!(Math.abs(residuals[s * n + i]) <= b)) {
+                // an infinite bound would admit any residual: an overflowed sample is always outside
+                if (!(Math.abs(residuals[s * n + i]) <= b) || b == Double.POSITIVE_INFINITY) {
                     bad = true;
                 }
             }

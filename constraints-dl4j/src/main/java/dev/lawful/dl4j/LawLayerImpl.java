@@ -1,5 +1,6 @@
 package dev.lawful.dl4j;
 
+import dev.lawful.enforce.BoundCheck;
 import dev.lawful.enforce.Completion;
 import org.deeplearning4j.nn.api.Layer;
 import org.deeplearning4j.nn.conf.NeuralNetConfiguration;
@@ -62,30 +63,35 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
      * @return the completed outputs for the current input, in double, declared order ({@code batch × outputWidth});
      *         in physical units when the layer has an output scaling
      */
-    protected double[] complete(Completion c, int batch) {
-        return complete(c, batch, NdArrays.toDouble(input));
+    protected double[] complete(Completion c, int batch, boolean training) {
+        return complete(c, batch, NdArrays.toDouble(input), training);
     }
 
-    private double[] complete(Completion c, int batch, double[] zIn) {
+    private double[] complete(Completion c, int batch, double[] zIn, boolean training) {
+        BoundCheck check = layerConf().getSpec().check(training);
         // backward follows forward on the same input: reuse that solution rather than solving again (compared by
-        // value, since a workspace may hand the same array back with new contents)
-        if (lastY != null && lastOwner == c && java.util.Arrays.equals(lastZ, zIn)) {
+        // value, since a workspace may hand the same array back with new contents); an uncertified training
+        // solution never answers a pass that must be certified
+        if (lastY != null && lastOwner == c && (lastCheck == BoundCheck.EVERY_SAMPLE || check == BoundCheck.SKIP)
+                && java.util.Arrays.equals(lastZ, zIn)) {
             return lastY;
         }
         Scaling out = layerConf().checkedOutputScaling(c);
         double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
         double[] y = new double[batch * c.outputWidth()];
-        c.forward(null, z, batch, y, null, workspace(c));
+        c.forward(null, z, batch, y, null, workspace(c), check);
         lastZ = zIn;
         lastY = y;
         lastOwner = c;
+        lastCheck = check;
         return y;
     }
 
-    /** The last input solved (as converted), its solution, and the completion that solved it. */
+    /** The last input solved (as converted), its solution, the completion that solved it and how it was checked. */
     private double[] lastZ;
     private double[] lastY;
     private Completion lastOwner;
+    private BoundCheck lastCheck;
 
     /**
      * Completes the input: {@code [batch, freeWidth]} free outputs to {@code [batch, outputWidth]} outputs in
@@ -99,7 +105,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         assertInputSet(false);
         Completion c = completion();
         int batch = checkedBatch(c, input);
-        double[] y = outputs(c, batch);
+        double[] y = outputs(c, batch, training);
         return NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATIONS, dataType, y, batch, c.outputWidth());
     }
 
@@ -108,9 +114,9 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
      *         the values {@link #activate} emits before rounding to the network's data type (normalised when the
      *         layer has an output scaling)
      */
-    double[] outputs(Completion c, int batch) {
+    double[] outputs(Completion c, int batch, boolean training) {
         double[] zIn = NdArrays.toDouble(input);
-        double[] y = complete(c, batch, zIn);
+        double[] y = complete(c, batch, zIn, training);
         Scaling out = layerConf().checkedOutputScaling(c);
         if (out != null) {
             y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, zIn, batch);
@@ -132,7 +138,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         int batch = checkedBatch(c, input);
         NdArrays.batch(epsilon, layerConf().who(), "the gradient on its output", c.outputWidth(), c.columns(),
                 "the layer after it must take all " + c.outputWidth() + " outputs");
-        double[] y = complete(c, batch);
+        double[] y = complete(c, batch, true);
         double[] gy = NdArrays.toDouble(epsilon);
         double[] gz = new double[batch * c.freeWidth()];
         Scaling scaling = layerConf().checkedOutputScaling(c);

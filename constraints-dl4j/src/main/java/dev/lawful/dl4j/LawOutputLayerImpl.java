@@ -55,10 +55,10 @@ public class LawOutputLayerImpl extends LawLayerImpl implements IOutputLayer {
      * @return the completed outputs for the current input in the network's data type ({@code [batch, outputWidth]},
      *         the values {@link #activate} returns), in the current workspace
      */
-    protected INDArray outputsForLoss() {
+    protected INDArray outputsForLoss(boolean training) {
         Completion c = completion();
         int batch = checkedBatch(c, input);
-        double[] y = outputs(c, batch);
+        double[] y = outputs(c, batch, training);
         INDArray out = Nd4j.createUninitialized(dataType, new long[] {batch, c.outputWidth()}, 'c');
         if (y.length > 0) {
             try (MemoryWorkspace ignored = Nd4j.getWorkspaceManager().scopeOutOfWorkspaces()) {
@@ -91,12 +91,13 @@ public class LawOutputLayerImpl extends LawLayerImpl implements IOutputLayer {
      */
     protected INDArray lossGradient() {
         INDArray l = checkedLabels();
-        return outputConf().checkedLossFn().computeGradient(l, outputsForLoss(), identity(), maskArray);
+        return outputConf().checkedLossFn().computeGradient(l, outputsForLoss(true), identity(), maskArray);
     }
 
     /**
      * @param fullNetRegTerm the network's regularisation score, added to the loss
-     * @param training       whether the network is training (unused: the layer behaves the same)
+     * @param training       whether the network is training (a training pass skips the final bound check unless
+     *                       the spec certifies while training, {@link LawSpec#check(boolean)})
      * @param workspaceMgr   the network's workspace manager
      * @return the loss on the completed outputs divided by the minibatch size, plus {@code fullNetRegTerm}
      */
@@ -104,7 +105,7 @@ public class LawOutputLayerImpl extends LawLayerImpl implements IOutputLayer {
     public double computeScore(double fullNetRegTerm, boolean training, LayerWorkspaceMgr workspaceMgr) {
         INDArray l = checkedLabels();
         this.fullNetworkRegularizationScore = fullNetRegTerm;
-        double s = outputConf().checkedLossFn().computeScore(l, outputsForLoss(), identity(), maskArray, false);
+        double s = outputConf().checkedLossFn().computeScore(l, outputsForLoss(training), identity(), maskArray, false);
         s /= getInputMiniBatchSize();
         s += fullNetworkRegularizationScore;
         this.score = s;
@@ -119,7 +120,7 @@ public class LawOutputLayerImpl extends LawLayerImpl implements IOutputLayer {
     @Override
     public INDArray computeScoreForExamples(double fullNetRegTerm, LayerWorkspaceMgr workspaceMgr) {
         INDArray l = checkedLabels();
-        INDArray s = outputConf().checkedLossFn().computeScoreArray(l, outputsForLoss(), identity(), maskArray);
+        INDArray s = outputConf().checkedLossFn().computeScoreArray(l, outputsForLoss(false), identity(), maskArray);
         if (fullNetRegTerm != 0.0) {
             s.addi(fullNetRegTerm);
         }

@@ -2,6 +2,7 @@ package dev.lawful.dl4j;
 
 import dev.lawful.algebra.LawException;
 import dev.lawful.algebra.LawSet;
+import dev.lawful.enforce.BoundCheck;
 import dev.lawful.enforce.Completion;
 import dev.lawful.enforce.OnBadSample;
 import java.util.Arrays;
@@ -23,6 +24,7 @@ public final class LawSpec implements java.io.Serializable {
     private String sourceName = "<network>";
     private String[] completed;
     private boolean maskBadSamples;
+    private boolean certifyWhileTraining;
     private transient volatile LawSet laws;
     private transient volatile Completion completion;
 
@@ -94,6 +96,32 @@ public final class LawSpec implements java.io.Serializable {
     }
 
     /**
+     * @return whether training passes also check every sample against the documented bound (false, the default:
+     *         see {@link #check(boolean)})
+     */
+    public boolean isCertifyWhileTraining() {
+        return certifyWhileTraining;
+    }
+
+    /**
+     * Chooses whether training passes also certify every sample ({@link BoundCheck#EVERY_SAMPLE}) rather than
+     * skipping that final evaluation ({@link BoundCheck#SKIP}, the default). Inference always certifies.
+     */
+    public void setCertifyWhileTraining(boolean certifyWhileTraining) {
+        this.certifyWhileTraining = certifyWhileTraining;
+    }
+
+    /**
+     * @param training whether the pass is a training pass (its outputs feed a loss and its gradient)
+     * @return {@link BoundCheck#SKIP} for a training pass unless {@link #isCertifyWhileTraining()}, else
+     *         {@link BoundCheck#EVERY_SAMPLE}: outputs a user sees, scores on held-out data and deployment are
+     *         always certified, while a training step does not pay one more evaluation of every law per sample
+     */
+    public BoundCheck check(boolean training) {
+        return training && !certifyWhileTraining ? BoundCheck.SKIP : BoundCheck.EVERY_SAMPLE;
+    }
+
+    /**
      * @return the checked law set, parsed from the text on first use
      * @throws LawException with the law language's diagnostics when the text does not parse or check
      */
@@ -130,12 +158,13 @@ public final class LawSpec implements java.io.Serializable {
     @Override
     public boolean equals(Object o) {
         return o instanceof LawSpec s && Objects.equals(lawText, s.lawText) && sourceName.equals(s.sourceName)
-                && Arrays.equals(completed, s.completed) && maskBadSamples == s.maskBadSamples;
+                && Arrays.equals(completed, s.completed) && maskBadSamples == s.maskBadSamples
+                && certifyWhileTraining == s.certifyWhileTraining;
     }
 
     @Override
     public int hashCode() {
-        return Objects.hash(lawText, sourceName, Arrays.hashCode(completed), maskBadSamples);
+        return Objects.hash(lawText, sourceName, Arrays.hashCode(completed), maskBadSamples, certifyWhileTraining);
     }
 
     @Override

@@ -136,6 +136,7 @@ final class NdArrays {
         s.setSourceName(spec.getSourceName());
         s.setCompleted(spec.getCompleted());
         s.setMaskBadSamples(spec.isMaskBadSamples());
+        s.setCertifyWhileTraining(spec.isCertifyWhileTraining());
         return s;
     }
 

@@ -161,7 +161,7 @@ class NormalizedGradientTest extends DoublePrecisionTest {
                 public Pair<Gradient, INDArray> backpropGradient(INDArray epsilon, LayerWorkspaceMgr mgr) {
                     Completion c = completion();
                     int batch = Math.toIntExact(input.size(0));
-                    double[] y = complete(c, batch);
+                    double[] y = complete(c, batch, true);
                     double[] gz = new double[batch * c.freeWidth()];
                     c.backward(null, y, NdArrays.toDouble(epsilon), batch, gz, null, c.newWorkspace());
                     return new Pair<>(new DefaultGradient(),

@@ -1,0 +1,104 @@
+package dev.lawful.dl4j;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.lawful.enforce.BoundCheck;
+import dev.lawful.enforce.Completion;
+import java.util.List;
+import java.util.SplittableRandom;
+import org.deeplearning4j.nn.conf.MultiLayerConfiguration;
+import org.deeplearning4j.nn.conf.inputs.InputType;
+import org.deeplearning4j.nn.multilayer.MultiLayerNetwork;
+import org.junit.jupiter.api.Test;
+import org.nd4j.linalg.api.buffer.DataType;
+import org.nd4j.linalg.api.ndarray.INDArray;
+import org.nd4j.linalg.learning.config.Adam;
+
+/**
+ * Training passes skip the final bound check ({@link BoundCheck#SKIP}) unless the spec certifies while training;
+ * inference always certifies, and an uncertified training solution is never reused for an inference pass.
+ */
+class TrainingCheckTest extends DoublePrecisionTest {
+    /**
+     * Both completed outputs are small differences of large free outputs, so the constant-affine fold cancels and
+     * its rounding is often above the documented bound of law {@code a}: there the certified call refines.
+     */
+    private static final String CANCELLING = "output y[4]\n"
+            + "law a: 1.3*y[0] - 1.7*y[1] = 0\n"
+            + "law b: y[0] + y[1] = y[2] - y[3]\n"
+            + "complete y[0], y[1]\n";
+
+    private static MultiLayerNetwork lawOnly(LawSpec spec) {
+        MultiLayerConfiguration conf = TestNets.base(DataType.DOUBLE, new Adam(1e-3), 3).list()
+                .layer(new LawLayer(spec))
+                .setInputType(InputType.feedForward(2))
+                .build();
+        MultiLayerNetwork net = new MultiLayerNetwork(conf);
+        net.init();
+        return net;
+    }
+
+    private static double[] last(List<INDArray> activations) {
+        return TestNets.flat(activations.get(activations.size() - 1));
+    }
+
+    @Test
+    void trainingSkipsTheCheckAndInferenceCertifies() {
+        LawSpec spec = LawSpec.of(CANCELLING);
+        Completion c = spec.completion();
+        int batch = 200;
+        SplittableRandom r = new SplittableRandom(11);
+        double[][] rows = new double[batch][2];
+        for (double[] row : rows) {
+            row[1] = 1000 * (1 + r.nextDouble());
+            row[0] = row[1] + r.nextDouble(-1e-3, 1e-3);
+        }
+        double[] z = new double[batch * 2];
+        for (int s = 0; s < batch; s++) {
+            z[s * 2] = rows[s][0];
+            z[s * 2 + 1] = rows[s][1];
+        }
+        double[] certified = new double[batch * 4];
+        double[] skipped = new double[batch * 4];
+        c.forward(null, z, batch, certified, null, c.newWorkspace(), BoundCheck.EVERY_SAMPLE);
+        c.forward(null, z, batch, skipped, null, c.newWorkspace(), BoundCheck.SKIP);
+        assertFalse(java.util.Arrays.equals(certified, skipped), "the data must make the certified call refine");
+        // Source: constraints-core Completion class documentation, "Exactness" (re-implemented in TestNets)
+        TestNets.assertWithinDocumentedBound(c, null, certified, batch, false);
+
+        INDArray in = TestNets.array(rows, DataType.DOUBLE);
+        MultiLayerNetwork net = lawOnly(spec);
+        assertArrayEquals(skipped, last(net.feedForward(in, true)), 0.0, "a training pass is not certified");
+        // the same input right after: the cached training solution must not answer an inference pass
+        assertArrayEquals(certified, last(net.feedForward(in, false)), 0.0, "inference certifies");
+        assertArrayEquals(certified, TestNets.flat(net.output(in)), 0.0);
+        // a certified solution may answer a training pass
+        assertArrayEquals(certified, last(net.feedForward(in, true)), 0.0);
+
+        LawSpec strict = LawSpec.of(CANCELLING);
+        strict.setCertifyWhileTraining(true);
+        assertEquals(BoundCheck.EVERY_SAMPLE, strict.check(true));
+        assertEquals(BoundCheck.SKIP, spec.check(true));
+        assertEquals(BoundCheck.EVERY_SAMPLE, spec.check(false));
+        assertArrayEquals(certified, last(lawOnly(strict).feedForward(in, true)), 0.0,
+                "certifyWhileTraining makes training passes certify too");
+    }
+
+    @Test
+    void theChoiceTravelsWithTheConfiguration() {
+        LawSpec strict = LawSpec.of(CANCELLING);
+        strict.setCertifyWhileTraining(true);
+        MultiLayerNetwork net = lawOnly(strict);
+        MultiLayerConfiguration back = MultiLayerConfiguration.fromJson(net.getLayerWiseConfigurations().toJson());
+        LawLayer layer = (LawLayer) back.getConf(0).getLayer();
+        assertTrue(layer.getSpec().isCertifyWhileTraining());
+        assertEquals(strict, layer.getSpec());
+        LawSpec plain = LawSpec.of(CANCELLING);
+        assertFalse(plain.equals(strict), "the choice is part of the spec's identity");
+        assertFalse(new LawLayer(plain).getSpec().isCertifyWhileTraining());
+        assertTrue(new LawLayer(strict).getSpec().isCertifyWhileTraining(), "the layer's copy keeps the choice");
+    }
+}
