@@ -649,7 +649,8 @@ public final class Completion {
      * @param y      output buffer of {@code batch * outputWidth()} values in this completion's layout
      * @param status optional buffer of {@code batch} bytes for {@link SampleStatus} codes (null to skip)
      * @param ws     this thread's workspace
-     * @throws EnforcementException under {@link OnBadSample#THROW} for the first sample that cannot be enforced
+     * @throws EnforcementException under {@link OnBadSample#THROW} for the first sample that cannot be enforced (what
+     *         {@code y} then holds is unspecified)
      * @throws IllegalArgumentException when an array is too short
      */
     public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace ws) {
@@ -679,12 +680,14 @@ public final class Completion {
             return;
         }
         ws.ensure(this, batch);
-        double[] full = ws.y;
+        // in declared order the caller's buffer is the solve's (unless it is also an input)
+        double[] full = layout == Layout.DECLARED && y != x && y != z ? y : ws.y;
         byte[] st = ws.status;
-        solve.scatterFree(x, z, batch, full, st);
+        // the fold finds non-finite inputs itself
+        solve.scatterFree(x, z, batch, full, tier == Tier.CONSTANT_AFFINE ? null : st);
         switch (tier) {
             case CONSTANT_AFFINE:
-                solve.forwardConstantAffine(x, z, batch, full);
+                solve.forwardConstantAffine(x, z, batch, full, st);
                 if (certify) {
                     solve.refineAll(x, batch, full, st, ws);
                 }
@@ -743,7 +746,7 @@ public final class Completion {
             if (layout == Layout.DECLARED) {
                 if (bad) {
                     Arrays.fill(y, s * nOut, (s + 1) * nOut, Double.NaN);
-                } else {
+                } else if (full != y) {
                     System.arraycopy(full, s * nOut, y, s * nOut, nOut);
                 }
             } else {

@@ -39,6 +39,11 @@ final class CompletionSolve {
     private final double[] startValue;
     private final int maxIterations;
 
+    /** The free outputs as runs of consecutive columns: z offset, full-row offset and length of each run. */
+    private final int[] freeRunFrom;
+    private final int[] freeRunTo;
+    private final int[] freeRunLength;
+
     CompletionSolve(Completion c) {
         this.n = c.n;
         this.nIn = c.nIn;
@@ -65,51 +70,113 @@ final class CompletionSolve {
         this.guessTarget = c.guessTarget;
         this.startValue = c.startValue;
         this.maxIterations = c.maxIterations;
+        int runs = 0;
+        for (int f = 0; f < nFree; f++) {
+            if (f == 0 || free[f] != free[f - 1] + 1) {
+                runs++;
+            }
+        }
+        this.freeRunFrom = new int[runs];
+        this.freeRunTo = new int[runs];
+        this.freeRunLength = new int[runs];
+        for (int f = 0, k = -1; f < nFree; f++) {
+            if (f == 0 || free[f] != free[f - 1] + 1) {
+                k++;
+                freeRunFrom[k] = f;
+                freeRunTo[k] = free[f];
+            }
+            freeRunLength[k]++;
+        }
     }
 
-    void forwardConstantAffine(double[] x, double[] z, int batch, double[] full) {
+    /**
+     * The fold y_c = M z + N x + k for every sample, and each sample's status. Every product M_rf·z_f and N_ri·x_i
+     * is formed (zero coefficients included), and 0·∞ and 0·NaN are NaN, so a non-finite input or free output makes
+     * every completed output non-finite: the inputs are scanned only for samples whose first completed output is
+     * not finite, to tell a non-finite input (NOT_FINITE) from an overflow (NOT_CONVERGED).
+     */
+    void forwardConstantAffine(double[] x, double[] z, int batch, double[] full, byte[] st) {
+        final double[] m = foldM;
+        final double[] nx = foldN;
+        final double[] k = foldK;
+        final int[] to = completed;
+        final int nf = nFree;
+        final int ni = nIn;
+        final int no = nOut;
+        final int laws = n;
         for (int s = 0; s < batch; s++) {
-            int zo = s * nFree;
-            int xo = s * nIn;
-            int yo = s * nOut;
+            int zo = s * nf;
+            int xo = s * ni;
+            int yo = s * no;
             int r = 0;
-            // four completed outputs per pass over the sample's free outputs: four independent running sums, so
-            // the additions overlap instead of waiting on one another
-            for (; r + 4 <= n; r += 4) {
-                double v0 = foldK[r];
-                double v1 = foldK[r + 1];
-                double v2 = foldK[r + 2];
-                double v3 = foldK[r + 3];
-                int m0 = r * nFree;
-                for (int f = 0; f < nFree; f++) {
-                    double zf = z[zo + f];
-                    v0 += foldM[m0 + f] * zf;
-                    v1 += foldM[m0 + nFree + f] * zf;
-                    v2 += foldM[m0 + 2 * nFree + f] * zf;
-                    v3 += foldM[m0 + 3 * nFree + f] * zf;
+            // four completed outputs per pass over the sample's free outputs, each summed over even and odd free
+            // outputs separately: eight independent running sums, so the additions overlap instead of waiting on
+            // one another
+            for (; r + 4 <= laws; r += 4) {
+                double v0 = k[r];
+                double v1 = k[r + 1];
+                double v2 = k[r + 2];
+                double v3 = k[r + 3];
+                double w0 = 0;
+                double w1 = 0;
+                double w2 = 0;
+                double w3 = 0;
+                int m0 = r * nf;
+                int m1 = m0 + nf;
+                int m2 = m1 + nf;
+                int m3 = m2 + nf;
+                int f = 0;
+                for (; f + 2 <= nf; f += 2) {
+                    double za = z[zo + f];
+                    double zb = z[zo + f + 1];
+                    v0 += m[m0 + f] * za;
+                    v1 += m[m1 + f] * za;
+                    v2 += m[m2 + f] * za;
+                    v3 += m[m3 + f] * za;
+                    w0 += m[m0 + f + 1] * zb;
+                    w1 += m[m1 + f + 1] * zb;
+                    w2 += m[m2 + f + 1] * zb;
+                    w3 += m[m3 + f + 1] * zb;
                 }
-                int n0 = r * nIn;
-                for (int i = 0; i < nIn; i++) {
+                if (f < nf) {
+                    double za = z[zo + f];
+                    v0 += m[m0 + f] * za;
+                    v1 += m[m1 + f] * za;
+                    v2 += m[m2 + f] * za;
+                    v3 += m[m3 + f] * za;
+                }
+                v0 += w0;
+                v1 += w1;
+                v2 += w2;
+                v3 += w3;
+                int n0 = r * ni;
+                for (int i = 0; i < ni; i++) {
                     double xi = x[xo + i];
-                    v0 += foldN[n0 + i] * xi;
-                    v1 += foldN[n0 + nIn + i] * xi;
-                    v2 += foldN[n0 + 2 * nIn + i] * xi;
-                    v3 += foldN[n0 + 3 * nIn + i] * xi;
+                    v0 += nx[n0 + i] * xi;
+                    v1 += nx[n0 + ni + i] * xi;
+                    v2 += nx[n0 + 2 * ni + i] * xi;
+                    v3 += nx[n0 + 3 * ni + i] * xi;
                 }
-                full[yo + completed[r]] = v0;
-                full[yo + completed[r + 1]] = v1;
-                full[yo + completed[r + 2]] = v2;
-                full[yo + completed[r + 3]] = v3;
+                full[yo + to[r]] = v0;
+                full[yo + to[r + 1]] = v1;
+                full[yo + to[r + 2]] = v2;
+                full[yo + to[r + 3]] = v3;
             }
-            for (; r < n; r++) {
-                double v = foldK[r];
-                for (int f = 0; f < nFree; f++) {
-                    v += foldM[r * nFree + f] * z[zo + f];
+            for (; r < laws; r++) {
+                double v = k[r];
+                for (int f = 0; f < nf; f++) {
+                    v += m[r * nf + f] * z[zo + f];
                 }
-                for (int i = 0; i < nIn; i++) {
-                    v += foldN[r * nIn + i] * x[xo + i];
+                for (int i = 0; i < ni; i++) {
+                    v += nx[r * ni + i] * x[xo + i];
                 }
-                full[yo + completed[r]] = v;
+                full[yo + to[r]] = v;
+            }
+            double first = full[yo + to[0]];
+            if (first - first == 0) {
+                st[s] = SampleStatus.OK;
+            } else {
+                st[s] = finite(z, zo, nf) && finite(x, xo, ni) ? SampleStatus.NOT_CONVERGED : SampleStatus.NOT_FINITE;
             }
         }
     }
@@ -441,26 +508,40 @@ final class CompletionSolve {
     }
 
     /**
-     * Writes the free outputs into their columns of the full rows and sets each sample's status: OK, or NOT_FINITE
-     * when an input or free output is NaN or infinite.
+     * Writes the free outputs into their columns of the full rows and, unless {@code st} is null, sets each
+     * sample's status: OK, or NOT_FINITE when an input or free output is NaN or infinite.
      */
     void scatterFree(double[] x, double[] z, int batch, double[] full, byte[] st) {
         for (int s = 0; s < batch; s++) {
-            // v·0 is 0 (or −0) for a finite v and NaN otherwise, so one sum tests the whole row without a branch
-            double probe = 0;
             int zo = s * nFree;
             int yo = s * nOut;
-            for (int f = 0; f < nFree; f++) {
-                double v = z[zo + f];
-                full[yo + free[f]] = v;
-                probe += v * 0.0;
+            for (int k = 0; k < freeRunFrom.length; k++) {
+                System.arraycopy(z, zo + freeRunFrom[k], full, yo + freeRunTo[k], freeRunLength[k]);
             }
-            int xo = s * nIn;
-            for (int i = 0; i < nIn; i++) {
-                probe += x[xo + i] * 0.0;
+            if (st != null) {
+                st[s] = finite(z, zo, nFree) && finite(x, s * nIn, nIn) ? SampleStatus.OK : SampleStatus.NOT_FINITE;
             }
-            st[s] = probe == 0 ? SampleStatus.OK : SampleStatus.NOT_FINITE;
         }
+    }
+
+    /** @return whether {@code a[from .. from+count)} are all finite (no NaN, no infinity) */
+    static boolean finite(double[] a, int from, int count) {
+        // v·0 is ±0 for a finite v and NaN otherwise; four running sums so the additions overlap
+        double p0 = 0;
+        double p1 = 0;
+        double p2 = 0;
+        double p3 = 0;
+        int i = 0;
+        for (; i + 4 <= count; i += 4) {
+            p0 += a[from + i] * 0.0;
+            p1 += a[from + i + 1] * 0.0;
+            p2 += a[from + i + 2] * 0.0;
+            p3 += a[from + i + 3] * 0.0;
+        }
+        for (; i < count; i++) {
+            p0 += a[from + i] * 0.0;
+        }
+        return p0 + p1 + p2 + p3 == 0;
     }
 
     /**
@@ -481,8 +562,8 @@ final class CompletionSolve {
                 // ḡ_z = ḡ_f + Mᵀ ḡ_c and ḡ_x = Nᵀ ḡ_c: rows of M (N) are read in order, four per pass over ḡ_z
                 int zo = s * nFree;
                 int go = s * nOut;
-                for (int f = 0; f < nFree; f++) {
-                    gz[zo + f] = g[go + free[f]];
+                for (int k = 0; k < freeRunFrom.length; k++) {
+                    System.arraycopy(g, go + freeRunTo[k], gz, zo + freeRunFrom[k], freeRunLength[k]);
                 }
                 if (gx != null) {
                     Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
@@ -572,13 +653,7 @@ final class CompletionSolve {
     }
 
     private boolean finiteRow(double[] full, double[] g, int s) {
-        // v·0 is ±0 for a finite v and NaN otherwise: one branch-free sum tests both rows
-        double probe = 0;
-        int o0 = s * nOut;
-        for (int o = 0; o < nOut; o++) {
-            probe += full[o0 + o] * 0.0 + g[o0 + o] * 0.0;
-        }
-        return probe == 0;
+        return finite(full, s * nOut, nOut) && finite(g, s * nOut, nOut);
     }
 
     private void nanGradients(int s, double[] gz, double[] gx) {
