@@ -276,17 +276,31 @@ public final class LawEvaluator {
             nextRoot[k] = firstRoot[id];
             firstRoot[id] = k;
         }
-        // which values are read: by a parent (a constant exponent folded into POWI is not) or by a store
+        // which nodes get an instruction: a root, or a node some emitted parent reads. Parents have larger ids than
+        // their children, so one pass downwards decides every node. A sum reads a cheap addend (c·v, −v, |v|,
+        // c·|v|, a constant) in place from the register of v, so such an addend gets no instruction of its own
+        // unless something else reads it; a constant exponent folded into POWI is not read either.
+        boolean[] emitted = new boolean[size];
         boolean[] read = new boolean[size];
-        for (int id = 0; id < size; id++) {
-            if (needed[id]) {
-                Term t = pool.node(id);
+        for (int id = size - 1; id >= 0; id--) {
+            if (!needed[id] || !(read[id] || firstRoot[id] >= 0)) {
+                continue;
+            }
+            emitted[id] = true;
+            Term t = pool.node(id);
+            if (t.kind == Term.Kind.SUM) {
+                for (Term a : t.args) {
+                    Inline in = inline(a);
+                    if (in == null) {
+                        read[a.id] = true;
+                    } else if (in.base() != null) {
+                        read[in.base().id] = true;
+                    }
+                }
+            } else {
                 int argCount = isIntegerPower(t) ? 1 : t.args.length;
                 for (int a = 0; a < argCount; a++) {
                     read[t.args[a].id] = true;
-                }
-                if (firstRoot[id] >= 0) {
-                    read[id] = true;
                 }
             }
         }
@@ -296,15 +310,56 @@ public final class LawEvaluator {
         IntList defines = new IntList();
         List<Double> constants = new ArrayList<>();
         for (int id = 0; id < size; id++) {
-            if (!needed[id] || !read[id]) {
+            if (!emitted[id]) {
                 continue;
             }
             Term t = pool.node(id);
-            int[] args = new int[isIntegerPower(t) ? 1 : t.args.length];
+            int[] args;
+            int[] aux;
+            if (t.kind == Term.Kind.SUM) {
+                // per addend: the node whose register it reads (−1 for a constant alone), the index of its
+                // constant factor (−1 for none) and whether it takes the magnitude
+                int[] operand = new int[3 * t.args.length];
+                IntList bases = new IntList();
+                for (int k = 0; k < t.args.length; k++) {
+                    Inline in = inline(t.args[k]);
+                    if (in == null) {
+                        operand[3 * k] = t.args[k].id;
+                        operand[3 * k + 1] = -1;
+                        bases.add(t.args[k].id);
+                        continue;
+                    }
+                    operand[3 * k] = in.base() == null ? -1 : in.base().id;
+                    if (in.base() != null) {
+                        bases.add(in.base().id);
+                    }
+                    if (in.hasFactor()) {
+                        constants.add(in.factor());
+                        operand[3 * k + 1] = constants.size() - 1;
+                    } else {
+                        operand[3 * k + 1] = -1;
+                    }
+                    operand[3 * k + 2] = in.abs() ? 1 : 0;
+                }
+                args = Arrays.copyOf(bases.a, bases.size);
+                aux = new int[1 + operand.length];
+                aux[0] = SUM;
+                System.arraycopy(operand, 0, aux, 1, operand.length);
+                instrs.add(aux);
+                uses.add(args);
+                defines.add(id);
+                for (int k = firstRoot[id]; k >= 0; k = nextRoot[k]) {
+                    Root r = roots.get(k);
+                    instrs.add(new int[] {STORE, r.target(), r.index()});
+                    uses.add(new int[] {id});
+                    defines.add(-1);
+                }
+                continue;
+            }
+            args = new int[isIntegerPower(t) ? 1 : t.args.length];
             for (int k = 0; k < args.length; k++) {
                 args[k] = t.args[k].id;
             }
-            int[] aux;
             switch (t.kind) {
                 case CONST:
                     constants.add(t.value);
@@ -312,9 +367,6 @@ public final class LawEvaluator {
                     break;
                 case VAR:
                     aux = t.variable < inputWidth ? new int[] {IN, t.variable} : new int[] {OUT, t.variable - inputWidth};
-                    break;
-                case SUM:
-                    aux = new int[] {SUM};
                     break;
                 case NEG:
                     aux = new int[] {NEG};
@@ -393,7 +445,7 @@ public final class LawEvaluator {
                     throw new AssertionError("node " + node + " is computed but never used");
                 }
             }
-            int[] words = encode(aux, dst, regs);
+            int[] words = aux[0] == SUM ? encodeSum(aux, dst, regs) : encode(aux, dst, regs);
             if (length + words.length > code.length) {
                 code = Arrays.copyOf(code, Math.max(code.length * 2, length + words.length));
             }
@@ -432,20 +484,72 @@ public final class LawEvaluator {
         }
     }
 
+    /** A sum's addend read in place: factor·base, factor·|base| or |base| (base null: the factor alone). */
+    private record Inline(Term base, boolean hasFactor, double factor, boolean abs) {
+    }
+
+    /**
+     * @return how a sum reads {@code a} in place, or null when {@code a} is a register of its own (a variable, a
+     *         sum, anything not cheap). The value is the same bits as the node's: c·v is one rounded product either
+     *         way (IEEE multiplication commutes), −v is (−1)·v and |v| is exact.
+     */
+    private static Inline inline(Term a) {
+        if (a.kind == Term.Kind.CONST) {
+            return new Inline(null, true, a.value, false);
+        }
+        Term x;
+        boolean hasFactor = true;
+        double c;
+        if (a.kind == Term.Kind.MUL && a.args.length == 2 && a.args[0].kind == Term.Kind.CONST) {
+            c = a.args[0].value;
+            x = a.args[1];
+        } else if (a.kind == Term.Kind.MUL && a.args.length == 2 && a.args[1].kind == Term.Kind.CONST) {
+            c = a.args[1].value;
+            x = a.args[0];
+        } else if (a.kind == Term.Kind.NEG) {
+            c = -1;
+            x = a.args[0];
+        } else {
+            hasFactor = false;
+            c = 1;
+            x = a;
+        }
+        boolean abs = false;
+        if (x.kind == Term.Kind.FN && x.function == Function.ABS) {
+            abs = true;
+            x = x.args[0];
+        }
+        if (!hasFactor && !abs || x.kind == Term.Kind.CONST) {
+            return null;
+        }
+        return new Inline(x, hasFactor, c, abs);
+    }
+
+    /**
+     * Encodes a sum: {@code SUM, dst, count}, then per addend its register (−1: none), constant index (−1: none)
+     * and magnitude flag; {@code regs} holds the registers of the addends that read one, in addend order.
+     */
+    private static int[] encodeSum(int[] aux, int dst, int[] regs) {
+        int count = (aux.length - 1) / 3;
+        int[] w = new int[3 + 3 * count];
+        w[0] = SUM;
+        w[1] = dst;
+        w[2] = count;
+        int next = 0;
+        for (int k = 0; k < count; k++) {
+            w[3 + 3 * k] = aux[1 + 3 * k] < 0 ? -1 : regs[next++];
+            w[4 + 3 * k] = aux[2 + 3 * k];
+            w[5 + 3 * k] = aux[3 + 3 * k];
+        }
+        return w;
+    }
+
     private static int[] encode(int[] aux, int dst, int[] regs) {
         switch (aux[0]) {
             case CONST:
             case IN:
             case OUT:
                 return new int[] {aux[0], dst, aux[1]};
-            case SUM: {
-                int[] w = new int[3 + regs.length];
-                w[0] = SUM;
-                w[1] = dst;
-                w[2] = regs.length;
-                System.arraycopy(regs, 0, w, 3, regs.length);
-                return w;
-            }
             case NEG:
                 return new int[] {NEG, dst, regs[0]};
             case POWI:
@@ -675,6 +779,34 @@ public final class LawEvaluator {
         }
     }
 
+    /** Writes a sum's first addend (encoded at {@code code[at..at+3)}) into {@code d[0..m)}. */
+    private static void addend(double[][] r, int[] code, int at, double[] constants, double[] d, int m) {
+        int reg = code[at];
+        int ci = code[at + 1];
+        boolean abs = code[at + 2] != 0;
+        if (reg < 0) {
+            Arrays.fill(d, 0, m, constants[ci]);
+            return;
+        }
+        double[] v = r[reg];
+        double k = ci < 0 ? 1 : constants[ci];
+        if (ci < 0 && !abs) {
+            System.arraycopy(v, 0, d, 0, m);
+        } else if (ci < 0) {
+            for (int j = 0; j < m; j++) {
+                d[j] = Math.abs(v[j]);
+            }
+        } else if (!abs) {
+            for (int j = 0; j < m; j++) {
+                d[j] = k * v[j];
+            }
+        } else {
+            for (int j = 0; j < m; j++) {
+                d[j] = k * Math.abs(v[j]);
+            }
+        }
+    }
+
     /**
      * Runs the program on samples {@code s0 .. s0+m-1}. Each register is its own array and every loop indexes
      * all its arrays with the same {@code j}, which lets the JIT vectorise the element-wise loops.
@@ -713,21 +845,69 @@ public final class LawEvaluator {
                     break;
                 }
                 case SUM: {
-                    // compensated sum, one operand at a time across the block so the loops vectorise; per sample
-                    // the operations and their order are exactly those of Kernels.neumaier
+                    // compensated sum, one addend at a time across the block so the loops vectorise; per sample
+                    // the operations and their order are exactly those of Kernels.neumaier. Cheap addends (c·v,
+                    // −v, |v|, c·|v|, constants) are formed in place from v's register.
                     double[] d = r[code[pc + 1]];
                     int n = code[pc + 2];
-                    System.arraycopy(r[code[pc + 3]], 0, d, 0, m);
+                    addend(r, code, pc + 3, constants, d, m);
                     Arrays.fill(c, 0, m, 0.0);
                     for (int a = 1; a < n; a++) {
-                        double[] v = r[code[pc + 3 + a]];
-                        for (int j = 0; j < m; j++) {
-                            double sj = d[j];
-                            double vj = v[j];
-                            double t = sj + vj;
-                            double z = t - sj;
-                            c[j] += (sj - (t - z)) + (vj - z);
-                            d[j] = t;
+                        int at = pc + 3 + 3 * a;
+                        int reg = code[at];
+                        int ci = code[at + 1];
+                        boolean abs = code[at + 2] != 0;
+                        if (reg < 0) {
+                            double vj = constants[ci];
+                            for (int j = 0; j < m; j++) {
+                                double sj = d[j];
+                                double t = sj + vj;
+                                double z = t - sj;
+                                c[j] += (sj - (t - z)) + (vj - z);
+                                d[j] = t;
+                            }
+                        } else if (ci < 0 && !abs) {
+                            double[] v = r[reg];
+                            for (int j = 0; j < m; j++) {
+                                double sj = d[j];
+                                double vj = v[j];
+                                double t = sj + vj;
+                                double z = t - sj;
+                                c[j] += (sj - (t - z)) + (vj - z);
+                                d[j] = t;
+                            }
+                        } else if (ci < 0) {
+                            double[] v = r[reg];
+                            for (int j = 0; j < m; j++) {
+                                double sj = d[j];
+                                double vj = Math.abs(v[j]);
+                                double t = sj + vj;
+                                double z = t - sj;
+                                c[j] += (sj - (t - z)) + (vj - z);
+                                d[j] = t;
+                            }
+                        } else if (!abs) {
+                            double[] v = r[reg];
+                            double k = constants[ci];
+                            for (int j = 0; j < m; j++) {
+                                double sj = d[j];
+                                double vj = k * v[j];
+                                double t = sj + vj;
+                                double z = t - sj;
+                                c[j] += (sj - (t - z)) + (vj - z);
+                                d[j] = t;
+                            }
+                        } else {
+                            double[] v = r[reg];
+                            double k = constants[ci];
+                            for (int j = 0; j < m; j++) {
+                                double sj = d[j];
+                                double vj = k * Math.abs(v[j]);
+                                double t = sj + vj;
+                                double z = t - sj;
+                                c[j] += (sj - (t - z)) + (vj - z);
+                                d[j] = t;
+                            }
                         }
                     }
                     for (int j = 0; j < m; j++) {
@@ -735,7 +915,7 @@ public final class LawEvaluator {
                         // as in Kernels.neumaier: an infinite sum keeps its plain value
                         d[j] = Double.isFinite(sj) ? sj + c[j] : sj;
                     }
-                    pc += 3 + n;
+                    pc += 3 + 3 * n;
                     break;
                 }
                 case NEG: {
