@@ -32,7 +32,8 @@ import java.util.Set;
  * (products, quotients, powers and functions along the deepest addend,
  * {@link dev.lawful.algebra.ExpandedLaws#roundingDepth(int)}); for an element balance d_i is 1, so the bound is
  * 4 double ulps of the magnitude of its terms. The bound is checked on every sample: a sample that misses it counts
- * as not converged, never as a silent success. With the float entry points the outputs are rounded to float
+ * as not converged, never as a silent success (a caller that only trains on the outputs may skip this final check
+ * with {@link BoundCheck#SKIP}; the result is then the solve's alone and not certified). With the float entry points the outputs are rounded to float
  * after enforcement in double, which adds at most ½·Σ_j |∂C_i/∂y_c,j|·ulp_f32(y_c,j) (plus the double bound):
  * for a law linear in its completed outputs that is at most 2⁻²⁴·s_i, about one float ulp of the magnitude of
  * its terms; a term y_c^k contributes up to k times as much.
