@@ -64,7 +64,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
      *         in physical units when the layer has an output scaling
      */
     protected double[] complete(Completion c, int batch, boolean training) {
-        return complete(c, batch, NdArrays.toDouble(input), training);
+        return complete(c, batch, NdArrays.toDouble(input, spareZ), training);
     }
 
     private double[] complete(Completion c, int batch, double[] zIn, boolean training) {
@@ -74,12 +74,19 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         // solution never answers a pass that must be certified
         if (lastY != null && lastOwner == c && (lastCheck == BoundCheck.EVERY_SAMPLE || check == BoundCheck.SKIP)
                 && java.util.Arrays.equals(lastZ, zIn)) {
+            if (zIn != lastZ) {
+                spareZ = zIn;
+            }
             return lastY;
         }
         Scaling out = layerConf().checkedOutputScaling(c);
         double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
-        double[] y = new double[batch * c.outputWidth()];
+        int width = batch * c.outputWidth();
+        double[] y = spareY != null && spareY.length == width ? spareY : new double[width];
         c.forward(null, z, batch, y, null, workspace(c), check);
+        // the buffers of the previous solution become the spares the next call converts and solves into
+        spareZ = lastZ;
+        spareY = lastY;
         lastZ = zIn;
         lastY = y;
         lastOwner = c;
@@ -92,6 +99,15 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
     private double[] lastY;
     private Completion lastOwner;
     private BoundCheck lastCheck;
+    /**
+     * Buffers reused from call to call (a training step then allocates no conversion arrays): the next input's
+     * conversion, the next solution, and the backward pass's gradients. A buffer handed out by {@link #complete}
+     * stays valid until the second call after it.
+     */
+    private double[] spareZ;
+    private double[] spareY;
+    private double[] spareGy;
+    private double[] spareGz;
 
     /**
      * Completes the input: {@code [batch, freeWidth]} free outputs to {@code [batch, outputWidth]} outputs in
@@ -115,7 +131,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
      *         layer has an output scaling)
      */
     double[] outputs(Completion c, int batch, boolean training) {
-        double[] zIn = NdArrays.toDouble(input);
+        double[] zIn = NdArrays.toDouble(input, spareZ);
         double[] y = complete(c, batch, zIn, training);
         Scaling out = layerConf().checkedOutputScaling(c);
         if (out != null) {
@@ -139,8 +155,11 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         NdArrays.batch(epsilon, layerConf().who(), "the gradient on its output", c.outputWidth(), c.columns(),
                 "the layer after it must take all " + c.outputWidth() + " outputs");
         double[] y = complete(c, batch, true);
-        double[] gy = NdArrays.toDouble(epsilon);
-        double[] gz = new double[batch * c.freeWidth()];
+        double[] gy = NdArrays.toDouble(epsilon, spareGy);
+        spareGy = gy;
+        int freeCount = batch * c.freeWidth();
+        double[] gz = spareGz != null && spareGz.length == freeCount ? spareGz : new double[freeCount];
+        spareGz = gz;
         Scaling scaling = layerConf().checkedOutputScaling(c);
         if (scaling != null) {
             NdArrays.divideByScale(scaling, gy);

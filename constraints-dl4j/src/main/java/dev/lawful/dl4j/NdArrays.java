@@ -28,19 +28,33 @@ final class NdArrays {
      *         1024 × 56 floats); any other array is first copied into that form.
      */
     static double[] toDouble(INDArray a) {
+        return toDouble(a, null);
+    }
+
+    /** Per-thread staging buffer for float arrays on their way to double (grown as needed, never shrunk). */
+    private static final ThreadLocal<float[]> STAGING = ThreadLocal.withInitial(() -> new float[0]);
+
+    /**
+     * {@link #toDouble(INDArray)} into {@code into} when it has exactly the array's length (a layer's buffer from an
+     * earlier call, so a training step allocates nothing here); otherwise into a new array.
+     */
+    static double[] toDouble(INDArray a, double[] into) {
         int n = Math.toIntExact(a.length());
         if (dense(a)) {
+            double[] v = into != null && into.length == n ? into : new double[n];
             if (a.dataType() == DataType.FLOAT) {
-                float[] f = new float[n];
+                float[] f = STAGING.get();
+                if (f.length < n) {
+                    f = new float[n];
+                    STAGING.set(f);
+                }
                 a.data().asNioFloat().get(f, 0, n);
-                double[] v = new double[n];
                 for (int i = 0; i < n; i++) {
                     v[i] = f[i];
                 }
                 return v;
             }
             if (a.dataType() == DataType.DOUBLE) {
-                double[] v = new double[n];
                 a.data().asNioDouble().get(v, 0, n);
                 return v;
             }

@@ -88,6 +88,32 @@ class TrainingCheckTest extends DoublePrecisionTest {
     }
 
     @Test
+    void reusedBuffersNeverMixUpInputs() {
+        // the layer converts and solves into buffers kept from earlier calls: alternating inputs, training and
+        // inference passes and two batch sizes must each give what the core gives for that input alone
+        LawSpec spec = LawSpec.of(CANCELLING);
+        Completion c = spec.completion();
+        MultiLayerNetwork net = lawOnly(spec);
+        SplittableRandom r = new SplittableRandom(5);
+        double[][][] inputs = {TestNets.uniform(r, 30, 2, -5, 5), TestNets.uniform(r, 30, 2, -5, 5),
+            TestNets.uniform(r, 7, 2, -5, 5)};
+        int[] order = {0, 1, 0, 2, 1, 1, 0, 2, 2, 0};
+        for (int k = 0; k < order.length; k++) {
+            double[][] rows = inputs[order[k]];
+            double[] z = new double[rows.length * 2];
+            for (int s = 0; s < rows.length; s++) {
+                z[2 * s] = rows[s][0];
+                z[2 * s + 1] = rows[s][1];
+            }
+            boolean training = k % 3 == 1;
+            double[] expected = new double[rows.length * 4];
+            c.forward(null, z, rows.length, expected, null, c.newWorkspace(), spec.check(training));
+            assertArrayEquals(expected, last(net.feedForward(TestNets.array(rows, DataType.DOUBLE), training)), 0.0,
+                    "call " + k + " (input " + order[k] + ", training " + training + ")");
+        }
+    }
+
+    @Test
     void theChoiceTravelsWithTheConfiguration() {
         LawSpec strict = LawSpec.of(CANCELLING);
         strict.setCertifyWhileTraining(true);
