@@ -94,7 +94,11 @@ final class NdArrays {
             return out;
         }
         if (dense(out) && dataType == DataType.FLOAT) {
-            float[] f = new float[n];
+            float[] f = STAGING.get();
+            if (f.length < n) {
+                f = new float[n];
+                STAGING.set(f);
+            }
             for (int i = 0; i < n; i++) {
                 f[i] = (float) values[i];
             }
