@@ -89,6 +89,16 @@ public class LawVertexImpl extends BaseGraphVertex {
     private double[] lastY;
     private Completion lastOwner;
     private BoundCheck lastCheck;
+    /**
+     * Buffers reused from call to call (see {@link LawLayerImpl}): the next inputs' conversions, the next solution
+     * and the backward pass's gradients; a buffer handed out stays valid until the second call after it.
+     */
+    private double[] spareX;
+    private double[] spareZ;
+    private double[] spareY;
+    private double[] spareGy;
+    private double[] spareGz;
+    private double[] spareGx;
 
     /**
      * @return the outputs for the current inputs, in double, declared order, in physical units when the vertex has
@@ -96,8 +106,8 @@ public class LawVertexImpl extends BaseGraphVertex {
      *         {@code xOut[1]} the free outputs as given
      */
     protected double[] complete(Completion c, int batch, double[][] xOut, boolean training) {
-        double[] xIn = NdArrays.toDouble(inputs[0]);
-        double[] zIn = NdArrays.toDouble(inputs[1]);
+        double[] xIn = NdArrays.toDouble(inputs[0], spareX);
+        double[] zIn = NdArrays.toDouble(inputs[1], spareZ);
         double[] x = xIn;
         double[] y;
         BoundCheck check = config.getSpec().check(training);
@@ -108,6 +118,12 @@ public class LawVertexImpl extends BaseGraphVertex {
                 && java.util.Arrays.equals(lastX, xIn) && java.util.Arrays.equals(lastZ, zIn)) {
             x = lastPhysicalX;
             y = lastY;
+            if (xIn != lastX) {
+                spareX = xIn;
+            }
+            if (zIn != lastZ) {
+                spareZ = zIn;
+            }
         } else {
             Scaling in = config.checkedInputScaling(c);
             Scaling out = config.checkedOutputScaling(c);
@@ -116,8 +132,13 @@ public class LawVertexImpl extends BaseGraphVertex {
                 x = in.toPhysical(xIn, batch);
                 z = NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
             }
-            y = new double[batch * c.outputWidth()];
+            int width = batch * c.outputWidth();
+            y = spareY != null && spareY.length == width ? spareY : new double[width];
             c.forward(x, z, batch, y, null, workspace(c), check);
+            // the buffers of the previous solution become the spares the next call converts and solves into
+            spareX = lastX;
+            spareZ = lastZ;
+            spareY = lastY;
             lastCheck = check;
             lastX = xIn;
             lastZ = zIn;
@@ -132,6 +153,10 @@ public class LawVertexImpl extends BaseGraphVertex {
             }
         }
         return y;
+    }
+
+    private static double[] reuse(double[] spare, int length) {
+        return spare != null && spare.length == length ? spare : new double[length];
     }
 
     /** @return false: the vertex is not a layer */
@@ -179,9 +204,12 @@ public class LawVertexImpl extends BaseGraphVertex {
                 "the vertex after it must take all " + c.outputWidth() + " outputs");
         double[][] x = new double[1][];
         double[] y = complete(c, batch, x, true);
-        double[] gy = NdArrays.toDouble(epsilon);
-        double[] gz = new double[batch * c.freeWidth()];
-        double[] gx = new double[batch * c.inputWidth()];
+        double[] gy = NdArrays.toDouble(epsilon, spareGy);
+        spareGy = gy;
+        double[] gz = reuse(spareGz, batch * c.freeWidth());
+        spareGz = gz;
+        double[] gx = reuse(spareGx, batch * c.inputWidth());
+        spareGx = gx;
         Scaling in = config.checkedInputScaling(c);
         Scaling scaling = config.checkedOutputScaling(c);
         if (scaling != null) {

@@ -11,6 +11,7 @@ import java.util.List;
 import java.util.SplittableRandom;
 import org.deeplearning4j.nn.conf.MultiLayerConfiguration;
 import org.deeplearning4j.nn.conf.inputs.InputType;
+import org.deeplearning4j.nn.graph.ComputationGraph;
 import org.deeplearning4j.nn.multilayer.MultiLayerNetwork;
 import org.junit.jupiter.api.Test;
 import org.nd4j.linalg.api.buffer.DataType;
@@ -110,6 +111,39 @@ class TrainingCheckTest extends DoublePrecisionTest {
             c.forward(null, z, rows.length, expected, null, c.newWorkspace(), spec.check(training));
             assertArrayEquals(expected, last(net.feedForward(TestNets.array(rows, DataType.DOUBLE), training)), 0.0,
                     "call " + k + " (input " + order[k] + ", training " + training + ")");
+        }
+    }
+
+    @Test
+    void theVertexReusesItsBuffersWithoutMixingUpInputsOrGradients() {
+        // the law vertex of a ConstrainedGraph keeps its conversion, solution and gradient buffers too: each call on
+        // a network with a history must give what a fresh copy of the network (no history) gives for that input
+        ComputationGraph net = ConstrainedGraph.builder(LawSpec.of(TestNets.X_AFFINE)).hidden(8).seed(3)
+                .dataType(DataType.DOUBLE).build();
+        SplittableRandom r = new SplittableRandom(9);
+        INDArray[] inputs = {TestNets.array(TestNets.uniform(r, 20, 2, 0.5, 1.5), DataType.DOUBLE),
+            TestNets.array(TestNets.uniform(r, 20, 2, 0.5, 1.5), DataType.DOUBLE),
+            TestNets.array(TestNets.uniform(r, 6, 2, 0.5, 1.5), DataType.DOUBLE)};
+        INDArray labels = TestNets.array(TestNets.uniform(r, 20, 3, -1, 1), DataType.DOUBLE);
+        int[] order = {0, 1, 0, 2, 1, 0, 2, 2};
+        for (int k = 0; k < order.length; k++) {
+            INDArray in = inputs[order[k]];
+            ComputationGraph fresh = net.clone();
+            boolean training = k % 2 == 1;
+            INDArray expected = fresh.feedForward(new INDArray[] {in}, training).get(ConstrainedGraph.LAWS);
+            INDArray actual = net.feedForward(new INDArray[] {in}, training).get(ConstrainedGraph.LAWS);
+            assertArrayEquals(TestNets.flat(expected), TestNets.flat(actual), 0.0, "call " + k);
+            if (order[k] != 2) {
+                // gradients too: one gradient computation on each, compared parameter by parameter
+                fresh.setInputs(in);
+                fresh.setLabels(labels);
+                fresh.computeGradientAndScore();
+                net.setInputs(in);
+                net.setLabels(labels);
+                net.computeGradientAndScore();
+                assertArrayEquals(TestNets.flat(fresh.gradient().gradient()), TestNets.flat(net.gradient().gradient()),
+                        0.0, "gradient at call " + k);
+            }
         }
     }
 

@@ -1,0 +1,30 @@
+#!/usr/bin/env bash
+# What share of a DL4J training step the law layer takes, from a JFR profile of TrainingStepBench (robust to a
+# machine that is slower or faster as a whole, unlike the difference of two timed runs).
+# Usage: benchmarks/layer-share.sh [shape ...]      shapes: headline (default), small, large
+# Per shape and tier: samples of the benchmark thread (Java every 10 ms, native every 20 ms, each weighted by its
+# period) with a dev.lawful core or adapter frame on the stack, over all its samples. About 40 s per line.
+set -euo pipefail
+here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
+cd "$here"
+mvn -B -q -DskipTests package -pl benchmarks -am
+export OMP_NUM_THREADS=1
+jar=benchmarks/target/benchmarks.jar
+out=benchmarks/target/layer-share
+mkdir -p "$out"
+shapes=("$@")
+[[ ${#shapes[@]} -gt 0 ]] || shapes=(headline)
+for shape in "${shapes[@]}"; do
+  for tier in constant-affine affine nonlinear; do
+    f="$out/$shape-$tier.jfr"
+    java -jar "$jar" TrainingStepBench -p shape="$shape" -p laws="$tier" -wi 3 -w 2 -i 6 -r 2 -f 1 \
+      -jvmArgsAppend "-XX:StartFlightRecording=filename=$f,settings=profile" > "$out/$shape-$tier.log" 2>&1
+    jfr print --events jdk.ExecutionSample,jdk.NativeMethodSample --stack-depth 200 "$f" | awk -v tag="$shape $tier" '
+      /^jdk\.(ExecutionSample|NativeMethodSample)/ {if (inev) flush(); inev=1; w=($0 ~ /Native/) ? 20 : 10; law=0; bench=0; next}
+      /dev\.lawful\.(enforce|dl4j|algebra)\./ {law=1}
+      /TrainingStepBench\.fit/ {bench=1}
+      function flush() { if (bench) {n+=w; if (law) l+=w} }
+      END {flush(); if (n == 0) {print tag ": no samples"; exit 1}
+           printf "%-26s law layer %5.1f%% of the training step (%d of %d ms sampled)\n", tag ":", 100*l/n, l, n}'
+  done
+done
