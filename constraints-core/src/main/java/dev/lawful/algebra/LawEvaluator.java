@@ -790,13 +790,8 @@ public final class LawEvaluator {
         }
         double[] v = r[reg];
         double k = ci < 0 ? 1 : constants[ci];
-        if (ci < 0 && !abs) {
-            System.arraycopy(v, 0, d, 0, m);
-        } else if (ci < 0) {
-            for (int j = 0; j < m; j++) {
-                d[j] = Math.abs(v[j]);
-            }
-        } else if (!abs) {
+        // a plain v is read as 1·v, which is v exactly
+        if (!abs) {
             for (int j = 0; j < m; j++) {
                 d[j] = k * v[j];
             }
@@ -866,29 +861,10 @@ public final class LawEvaluator {
                                 c[j] += (sj - (t - z)) + (vj - z);
                                 d[j] = t;
                             }
-                        } else if (ci < 0 && !abs) {
-                            double[] v = r[reg];
-                            for (int j = 0; j < m; j++) {
-                                double sj = d[j];
-                                double vj = v[j];
-                                double t = sj + vj;
-                                double z = t - sj;
-                                c[j] += (sj - (t - z)) + (vj - z);
-                                d[j] = t;
-                            }
-                        } else if (ci < 0) {
-                            double[] v = r[reg];
-                            for (int j = 0; j < m; j++) {
-                                double sj = d[j];
-                                double vj = Math.abs(v[j]);
-                                double t = sj + vj;
-                                double z = t - sj;
-                                c[j] += (sj - (t - z)) + (vj - z);
-                                d[j] = t;
-                            }
                         } else if (!abs) {
+                            // a plain v is read as 1·v, which is v exactly
                             double[] v = r[reg];
-                            double k = constants[ci];
+                            double k = ci < 0 ? 1 : constants[ci];
                             for (int j = 0; j < m; j++) {
                                 double sj = d[j];
                                 double vj = k * v[j];
@@ -899,7 +875,7 @@ public final class LawEvaluator {
                             }
                         } else {
                             double[] v = r[reg];
-                            double k = constants[ci];
+                            double k = ci < 0 ? 1 : constants[ci];
                             for (int j = 0; j < m; j++) {
                                 double sj = d[j];
                                 double vj = k * Math.abs(v[j]);

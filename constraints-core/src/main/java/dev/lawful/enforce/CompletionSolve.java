@@ -553,7 +553,6 @@ final class CompletionSolve {
         return (p0 + p1) + (p2 + p3) + (p4 + p5) + (p6 + p7) == 0;
     }
 
-
     /**
      * The vector-Jacobian product at the solution: for the constant-affine tier ḡ_z = ḡ_f + Mᵀḡ_c, ḡ_x = Nᵀḡ_c;
      * otherwise Aᵀλ = ḡ_c, ḡ_z = ḡ_f − (∂C/∂z)ᵀλ, ḡ_x = −(∂C/∂x)ᵀλ. {@code full} and {@code g} hold the outputs

@@ -18,7 +18,7 @@ class CompletionBadSampleTest {
     private static final String SUFFIX = " (use OnBadSample.MASK to get NaN rows and a status mask instead)";
 
     /** Constant-affine: y[1] = (x0 + x1 − y0)/2. */
-    private static final LawSet CONSTANT = LawSet.parse("<constant>", String.join("\n",
+    static final LawSet CONSTANT = LawSet.parse("<constant>", String.join("\n",
             "input x[2]",
             "output y[2]",
             "law s: y[0] + 2*y[1] = x[0] + x[1]",
@@ -36,7 +36,7 @@ class CompletionBadSampleTest {
             ""));
 
     /** Nonlinear: v² = x − f has no real root where x < f. */
-    private static final LawSet NONLINEAR = LawSet.parse("<nonlinear>", String.join("\n",
+    static final LawSet NONLINEAR = LawSet.parse("<nonlinear>", String.join("\n",
             "input x",
             "input g",
             "output v",

@@ -152,12 +152,7 @@ class CompletionBoundCheckTest {
 
     @Test
     void badSamplesAreReportedWithoutTheCheck() {
-        LawSet constant = LawSet.parse("<constant>", String.join("\n",
-                "input x[2]",
-                "output y[2]",
-                "law s: y[0] + 2*y[1] = x[0] + x[1]",
-                "complete y[1]",
-                ""));
+        LawSet constant = CompletionBadSampleTest.CONSTANT;
         Completion c = Completion.builder(constant).onBadSample(OnBadSample.MASK).build();
         // a NaN input, and values so large that the completed output (x0 + x1 − y0)/2 overflows to +∞
         double max = Double.MAX_VALUE;
@@ -186,15 +181,7 @@ class CompletionBoundCheckTest {
 
     @Test
     void newtonThatCannotConvergeIsReportedWithoutTheCheck() {
-        LawSet nonlinear = LawSet.parse("<nonlinear>", String.join("\n",
-                "input x",
-                "input g",
-                "output v",
-                "output f",
-                "law sq: v^2 + f = x",
-                "guess v = g",
-                "complete v",
-                ""));
+        LawSet nonlinear = CompletionBadSampleTest.NONLINEAR;
         Completion c = Completion.builder(nonlinear).onBadSample(OnBadSample.MASK).build();
         // x − f = 3 has the root √3; x − f = −3 has none
         byte[] status = new byte[2];

@@ -81,8 +81,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         }
         Scaling out = layerConf().checkedOutputScaling(c);
         double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
-        int width = batch * c.outputWidth();
-        double[] y = spareY != null && spareY.length == width ? spareY : new double[width];
+        double[] y = NdArrays.reuse(spareY, batch * c.outputWidth());
         c.forward(null, z, batch, y, null, workspace(c), check);
         // the buffers of the previous solution become the spares the next call converts and solves into
         spareZ = lastZ;
@@ -157,8 +156,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         double[] y = complete(c, batch, true);
         double[] gy = NdArrays.toDouble(epsilon, spareGy);
         spareGy = gy;
-        int freeCount = batch * c.freeWidth();
-        double[] gz = spareGz != null && spareGz.length == freeCount ? spareGz : new double[freeCount];
+        double[] gz = NdArrays.reuse(spareGz, batch * c.freeWidth());
         spareGz = gz;
         Scaling scaling = layerConf().checkedOutputScaling(c);
         if (scaling != null) {

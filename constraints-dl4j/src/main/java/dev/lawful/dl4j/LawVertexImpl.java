@@ -132,8 +132,7 @@ public class LawVertexImpl extends BaseGraphVertex {
                 x = in.toPhysical(xIn, batch);
                 z = NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
             }
-            int width = batch * c.outputWidth();
-            y = spareY != null && spareY.length == width ? spareY : new double[width];
+            y = NdArrays.reuse(spareY, batch * c.outputWidth());
             c.forward(x, z, batch, y, null, workspace(c), check);
             // the buffers of the previous solution become the spares the next call converts and solves into
             spareX = lastX;
@@ -153,10 +152,6 @@ public class LawVertexImpl extends BaseGraphVertex {
             }
         }
         return y;
-    }
-
-    private static double[] reuse(double[] spare, int length) {
-        return spare != null && spare.length == length ? spare : new double[length];
     }
 
     /** @return false: the vertex is not a layer */
@@ -206,9 +201,9 @@ public class LawVertexImpl extends BaseGraphVertex {
         double[] y = complete(c, batch, x, true);
         double[] gy = NdArrays.toDouble(epsilon, spareGy);
         spareGy = gy;
-        double[] gz = reuse(spareGz, batch * c.freeWidth());
+        double[] gz = NdArrays.reuse(spareGz, batch * c.freeWidth());
         spareGz = gz;
-        double[] gx = reuse(spareGx, batch * c.inputWidth());
+        double[] gx = NdArrays.reuse(spareGx, batch * c.inputWidth());
         spareGx = gx;
         Scaling in = config.checkedInputScaling(c);
         Scaling scaling = config.checkedOutputScaling(c);

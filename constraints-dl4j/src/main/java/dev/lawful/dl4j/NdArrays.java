@@ -34,6 +34,24 @@ final class NdArrays {
     /** Per-thread staging buffer for float arrays on their way to double (grown as needed, never shrunk). */
     private static final ThreadLocal<float[]> STAGING = ThreadLocal.withInitial(() -> new float[0]);
 
+    /** @return this thread's staging buffer, at least {@code n} long */
+    private static float[] staging(int n) {
+        float[] f = STAGING.get();
+        if (f.length < n) {
+            f = new float[n];
+            STAGING.set(f);
+        }
+        return f;
+    }
+
+    /**
+     * @return {@code spare} when it has exactly {@code length} elements (a buffer kept from an earlier call),
+     *         otherwise a new array
+     */
+    static double[] reuse(double[] spare, int length) {
+        return spare != null && spare.length == length ? spare : new double[length];
+    }
+
     /**
      * {@link #toDouble(INDArray)} into {@code into} when it has exactly the array's length (a layer's buffer from an
      * earlier call, so a training step allocates nothing here); otherwise into a new array.
@@ -41,13 +59,9 @@ final class NdArrays {
     static double[] toDouble(INDArray a, double[] into) {
         int n = Math.toIntExact(a.length());
         if (dense(a)) {
-            double[] v = into != null && into.length == n ? into : new double[n];
+            double[] v = reuse(into, n);
             if (a.dataType() == DataType.FLOAT) {
-                float[] f = STAGING.get();
-                if (f.length < n) {
-                    f = new float[n];
-                    STAGING.set(f);
-                }
+                float[] f = staging(n);
                 a.data().asNioFloat().get(f, 0, n);
                 for (int i = 0; i < n; i++) {
                     v[i] = f[i];
@@ -94,11 +108,7 @@ final class NdArrays {
             return out;
         }
         if (dense(out) && dataType == DataType.FLOAT) {
-            float[] f = STAGING.get();
-            if (f.length < n) {
-                f = new float[n];
-                STAGING.set(f);
-            }
+            float[] f = staging(n);
             for (int i = 0; i < n; i++) {
                 f[i] = (float) values[i];
             }
