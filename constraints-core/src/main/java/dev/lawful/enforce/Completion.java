@@ -1,17 +1,15 @@
 package dev.lawful.enforce;
 
-import dev.lawful.algebra.Declaration;
-import dev.lawful.algebra.ExpandedLaws;
-import dev.lawful.algebra.Expr;
-import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawSet;
-import dev.lawful.algebra.Term;
+import dev.lawful.enforce.plan.CompletionPlan;
+import dev.lawful.enforce.plan.CompletionPlanner;
+import dev.lawful.enforce.plan.ReferencePoint;
+import dev.lawful.enforce.solve.Columns;
+import dev.lawful.enforce.solve.FailureReport;
+import dev.lawful.enforce.solve.TierSolver;
 import java.util.ArrayList;
 import java.util.Arrays;
-import java.util.HashSet;
 import java.util.List;
-import java.util.Map;
-import java.util.Set;
 
 /**
  * Residual completion: the network predicts the free outputs z, and this enforcer computes the n completed
@@ -50,7 +48,11 @@ import java.util.Set;
  * <p><b>Layout</b>: outputs come back in declaration order by default (so label columns never need reordering),
  * or free outputs first and completed last ({@link Layout#FREE_FIRST}); {@link #columns()} names each column.
  *
- * <p>Immutable and safe to share between threads; each thread passes its own {@link Workspace}.
+ * <p><b>Structure</b>: the build makes an immutable {@link CompletionPlan} ({@link CompletionPlanner}); each
+ * {@link Workspace} holds a {@link TierSolver} of the plan's tier with that thread's work arrays.
+ *
+ * <p>Immutable and safe to share between threads; each thread passes its own {@link Workspace} (or null, to
+ * allocate one for the call).
  */
 public final class Completion {
     /** Column order of the full output vector. */
@@ -61,129 +63,54 @@ public final class Completion {
         FREE_FIRST
     }
 
-    private final LawSet laws;
-    private final ExpandedLaws expanded;
-    final LawEvaluator evaluator;
-    final int nIn;
-    final int nOut;
-    final int n;
-    final int nFree;
-    final int[] completed;
-    final int[] free;
-    /** For each output: its completed index k ≥ 0, or −(f+1) for free index f. */
-    private final int[] role;
-    private final Tier tier;
-    private final double condition;
-    private final List<String> warnings;
+    private final CompletionPlan plan;
+    private final Columns columns;
+    private final FailureReport failures;
     private final OnBadSample policy;
     private final Layout layout;
-    final int maxIterations;
-    /** Per scalar law, d_i + 3 of the bound, with d_i its rounding depth. */
-    final int[] boundFactor;
-    // output-Jacobian entries of the evaluator: law and completed index (or −(f+1))
-    final int[] entryLaw;
-    final int[] entryRole;
-    final int[] inEntryLaw;
-    final int[] inEntryColumn;
-    // constant-affine fold y_c = M z + N x + k
-    final double[] foldM;
-    final double[] foldN;
-    final double[] foldK;
-    /** The solve order: triangular levels first, then the coupled block. */
-    final Stages stages;
-    /** Per stage: factors of its block when the block is constant (constant-affine, or affine with constant A). */
-    final double[][] stageLu;
-    final int[][] stagePivot;
-    /** Factors of the whole block A when it is constant, for the gradients. */
-    final double[] constantLu;
-    final int[] constantPivot;
-    // Newton starting values
-    final LawEvaluator guessEvaluator;
-    final int[] guessTarget;
-    final double[] startValue;
+    private final int nIn;
+    private final int nOut;
+    private final int nFree;
 
-    /** The per-batch solving of every tier. */
-    private final CompletionSolve solve;
-
-    /** Work arrays for one thread; grows to the largest batch it has seen, then allocates nothing. */
+    /**
+     * Work arrays for one thread: the solver of this completion's tier with its own arrays, and the conversion
+     * buffers of the float entry points and of the free-first layout. Grows to the largest batch it has seen, then
+     * allocates nothing. Not thread-safe.
+     */
     public static final class Workspace {
-        final LawEvaluator.Workspace evaluation;
-        final LawEvaluator.Workspace guessEvaluation;
-        final double[] a;
-        final int[] pivot;
-        final double[] vector;
-        int capacity;
-        double[] x;
-        double[] z;
-        double[] y;
-        double[] out;
-        double[] residual;
-        double[] scale;
-        double[] jy;
-        double[] jx;
-        double[] lu;
-        int[] pivots;
-        double[] previous;
-        double[] step;
-        double[] stepLength;
-        double[] norm;
-        double[] referenceScale;
-        int[] iterations;
-        byte[] status;
-        double[] guesses;
-        double[] g;
-        double[] gyFloat;
-        double[] gz;
-        double[] gx;
-        /** Newton's still-active samples, gathered: their indices, inputs, outputs and evaluations. */
-        int[] active;
-        double[] activeX;
-        double[] activeY;
-        double[] activeResidual;
-        double[] activeScale;
-        double[] activeJy;
+        private final Completion owner;
+        private final TierSolver solver;
+        private int capacity;
+        private double[] x;
+        private double[] z;
+        private double[] y;
+        private double[] out;
+        private double[] g;
+        private double[] gyFloat;
+        private double[] gz;
+        private double[] gx;
+        private byte[] status;
 
-        Workspace(Completion c) {
-            this.evaluation = c.evaluator.newWorkspace();
-            this.guessEvaluation = c.guessEvaluator == null ? null : c.guessEvaluator.newWorkspace();
-            this.a = new double[Math.max(1, c.n * c.n)];
-            this.pivot = new int[Math.max(1, c.n)];
-            this.vector = new double[Math.max(1, Math.max(c.n, c.nOut))];
+        private Workspace(Completion owner) {
+            this.owner = owner;
+            this.solver = TierSolver.create(owner.plan, owner.columns);
         }
 
-        void ensure(Completion c, int batch) {
+        private void ensure(int batch) {
             if (batch <= capacity) {
                 return;
             }
+            Completion c = owner;
             capacity = batch;
             x = new double[batch * c.nIn];
             z = new double[batch * c.nFree];
             y = new double[batch * c.nOut];
             out = new double[batch * c.nOut];
-            residual = new double[batch * c.n];
-            scale = new double[batch * c.n];
-            jy = new double[batch * c.evaluator.outputNonzeros()];
-            jx = new double[batch * c.evaluator.inputNonzeros()];
-            lu = new double[batch * c.n * c.n];
-            pivots = new int[batch * c.n];
-            previous = new double[batch * c.n];
-            step = new double[batch * c.n];
-            stepLength = new double[batch];
-            norm = new double[batch];
-            referenceScale = new double[batch * c.n];
-            iterations = new int[batch];
-            status = new byte[batch];
-            guesses = c.guessEvaluator == null ? null : new double[batch * c.guessEvaluator.lawCount()];
             g = new double[batch * c.nOut];
             gyFloat = new double[batch * c.nOut];
             gz = new double[batch * c.nFree];
             gx = new double[batch * c.nIn];
-            active = new int[batch];
-            activeX = new double[batch * c.nIn];
-            activeY = new double[batch * c.nOut];
-            activeResidual = new double[batch * c.n];
-            activeScale = new double[batch * c.n];
-            activeJy = new double[batch * c.evaluator.outputNonzeros()];
+            status = new byte[batch];
         }
     }
 
@@ -246,9 +173,8 @@ public final class Completion {
 
         /**
          * The point (inputs, outputs in declared units) where the automatic choice, the rank check and the
-         * condition number are evaluated. Default: a fixed generic point, every element a pseudo-random value in
-         * [0.5, 1.5) of its declared unit (the same on every run), so that special points where laws happen to be
-         * dependent are not met by accident.
+         * condition number are evaluated. Default: {@link ReferencePoint#generic(LawSet)}, a fixed generic point
+         * (the same on every run), so that special points where laws happen to be dependent are not met by accident.
          */
         public Builder referencePoint(double[] x, double[] y) {
             this.xRef = x.clone();
@@ -261,9 +187,15 @@ public final class Completion {
          * @throws dev.lawful.algebra.LawException when the choice is impossible: wrong number of completed outputs,
          *         an output no law involves, dependent (redundant or contradictory) laws, a singular block, or a
          *         guess that uses a completed output
+         * @throws IllegalArgumentException when the reference point's lengths do not match the law set
          */
         public Completion build() {
-            return new Completion(this);
+            ReferencePoint reference = null;
+            if (xRef != null && laws.expand().size() > 0) {
+                reference = ReferencePoint.of(laws, xRef, yRef);
+            }
+            return new Completion(this, CompletionPlanner.plan(laws, new CompletionPlanner.Request(completedNames,
+                    automatic, allowed, maxIterations, reference)));
         }
     }
 
@@ -281,302 +213,37 @@ public final class Completion {
         return new Builder(laws);
     }
 
-    private Completion(Builder b) {
-        this.laws = b.laws;
-        this.expanded = laws.expand();
-        this.evaluator = laws.evaluator();
-        this.nIn = laws.inputWidth();
-        this.nOut = laws.outputWidth();
-        this.n = expanded.size();
+    private Completion(Builder b, CompletionPlan plan) {
+        this.plan = plan;
+        this.columns = new Columns(plan);
+        this.failures = new FailureReport(plan);
         this.policy = b.policy;
         this.layout = b.layout;
-        this.maxIterations = b.maxIterations;
-        List<String> notes = new ArrayList<>();
-        if (n == 0) {
-            throw laws.problem(null, "the law set has no laws, so there is nothing to complete");
-        }
-        double[] xRef = b.xRef != null ? b.xRef : generic(nIn, 0x5EED1L);
-        double[] yRef = b.yRef != null ? b.yRef : generic(nOut, 0x5EED2L);
-        if (xRef.length != nIn || yRef.length != nOut) {
-            throw new IllegalArgumentException("the reference point needs " + nIn + " inputs and " + nOut
-                    + " outputs, found " + xRef.length + " and " + yRef.length);
-        }
-        OutputChoice choice = new OutputChoice(laws, xRef, yRef);
-        choice.requireIndependentLaws();
-        int[] chosen;
-        Declaration about = laws.completion().orElse(null);
-        if (b.completedNames != null) {
-            chosen = indices(b.completedNames, "completed output");
-            about = null;
-        } else if (!b.automatic && laws.completion().isPresent()) {
-            chosen = laws.completedOutputs();
-        } else {
-            int[] allowed = b.allowed == null ? range(nOut) : indices(b.allowed, "allowed output");
-            chosen = choice.automatic(allowed);
-            notes.add("completed outputs chosen automatically: " + String.join(", ", names(chosen)));
-            about = null;
-        }
-        if (chosen.length != n) {
-            throw laws.problem(about, "the laws give " + n + " scalar equation" + (n == 1 ? "" : "s") + " but "
-                    + chosen.length + " output" + (chosen.length == 1 ? " is" : "s are") + " completed; complete"
-                    + " exactly " + n + " (one per scalar law)");
-        }
-        this.completed = chosen;
-        this.role = new int[nOut];
-        Arrays.fill(role, Integer.MIN_VALUE);
-        for (int k = 0; k < n; k++) {
-            role[completed[k]] = k;
-        }
-        this.nFree = nOut - n;
-        this.free = new int[nFree];
-        for (int o = 0, f = 0; o < nOut; o++) {
-            if (role[o] == Integer.MIN_VALUE) {
-                free[f] = o;
-                role[o] = -(f + 1);
-                f++;
-            }
-        }
-        Set<Integer> involved = new HashSet<>();
-        for (int i = 0; i < n; i++) {
-            for (int o : expanded.outputs(i)) {
-                involved.add(o);
-            }
-        }
-        for (int o : completed) {
-            if (!involved.contains(o)) {
-                throw laws.problem(about, "completed output " + laws.outputNames().get(o) + " is not involved in any"
-                        + " law, so no law can determine it; complete an output that a law involves");
-            }
-        }
-        this.condition = choice.condition(completed);
-        if (!(condition < 1e15)) {
-            String auto;
-            try {
-                auto = String.join(", ", names(choice.automatic(range(nOut))));
-            } catch (RuntimeException e) {
-                auto = null;
-            }
-            throw laws.problem(about, "the completed outputs " + String.join(", ", names(completed)) + " make the"
-                    + " laws singular at the reference point (no law system for them has a unique solution)"
-                    + (auto == null ? "" : "; a well-conditioned choice is: complete " + auto));
-        }
-        if (condition > OutputChoice.WARN_CONDITION) {
-            notes.add(String.format(java.util.Locale.ROOT, "the completed outputs are ill-conditioned (condition number %.3g > %.0e):"
-                    + " errors of the free outputs are amplified; consider the automatic choice", condition,
-                    OutputChoice.WARN_CONDITION));
-        }
-        this.tier = classify();
-        this.boundFactor = new int[n];
-        for (int i = 0; i < n; i++) {
-            boundFactor[i] = expanded.roundingDepth(i) + 3;
-        }
-        int nnz = evaluator.outputNonzeros();
-        this.entryLaw = new int[nnz];
-        this.entryRole = new int[nnz];
-        for (int i = 0; i < n; i++) {
-            int[] cols = evaluator.outputColumns(i);
-            for (int k = 0; k < cols.length; k++) {
-                entryLaw[evaluator.outputOffset(i) + k] = i;
-                entryRole[evaluator.outputOffset(i) + k] = role[cols[k]];
-            }
-        }
-        int nnzX = evaluator.inputNonzeros();
-        this.inEntryLaw = new int[nnzX];
-        this.inEntryColumn = new int[nnzX];
-        for (int i = 0; i < n; i++) {
-            int[] cols = evaluator.inputColumns(i);
-            for (int k = 0; k < cols.length; k++) {
-                inEntryLaw[evaluator.inputOffset(i) + k] = i;
-                inEntryColumn[evaluator.inputOffset(i) + k] = cols[k];
-            }
-        }
-        // guesses and default starting values for Newton
-        Map<Integer, Term> guesses = expanded.guesses();
-        List<Term> guessTerms = new ArrayList<>();
-        List<String> guessNames = new ArrayList<>();
-        List<Integer> targets = new ArrayList<>();
-        Set<Integer> completedVars = new HashSet<>();
-        for (int o : completed) {
-            completedVars.add(nIn + o);
-        }
-        for (Map.Entry<Integer, Term> e : guesses.entrySet()) {
-            if (role[e.getKey()] < 0) {
-                continue;
-            }
-            for (int v : e.getValue().variables()) {
-                if (completedVars.contains(v)) {
-                    throw laws.problem(guessFor(e.getKey()), "the guess for " + laws.outputNames().get(e.getKey())
-                            + " uses the completed output " + expanded.variableName(v) + "; a guess may use inputs,"
-                            + " constants and free outputs only");
-                }
-            }
-            guessTerms.add(e.getValue());
-            guessNames.add(laws.outputNames().get(e.getKey()));
-            targets.add(role[e.getKey()]);
-        }
-        this.guessEvaluator = guessTerms.isEmpty() ? null : LawEvaluator.forTerms(expanded, guessTerms, guessNames);
-        this.guessTarget = targets.stream().mapToInt(Integer::intValue).toArray();
-        // without a guess: generic values, different per output, so Newton never starts on a symmetric point
-        // (equal velocities in a collision) where the laws are degenerate
-        this.startValue = generic(n, 0x5EED3L);
-        // the solve order, and the factors of every block that is constant
-        this.stages = Stages.of(expanded, role, entryLaw, entryRole);
-        if (tier == Tier.NONLINEAR) {
-            // only outputs of stages that are nonlinear in their own outputs depend on where Newton starts
-            List<String> missing = new ArrayList<>();
-            for (Stages.Stage st : stages.stages) {
-                if (!stageIsNonlinear(st)) {
-                    continue;
-                }
-                for (int k : st.vars()) {
-                    if (!targets.contains(k)) {
-                        missing.add(laws.outputNames().get(completed[k]));
-                    }
-                }
-            }
-            if (!missing.isEmpty()) {
-                notes.add("nonlinear laws: Newton starts " + String.join(", ", missing) + " at fixed values between"
-                        + " 0.5 and 1.5 (in the declared unit); add a 'guess' statement to pick the root and speed"
-                        + " convergence");
-            }
-        }
-        boolean constantBlock = tier == Tier.CONSTANT_AFFINE || (tier == Tier.AFFINE && blockIsConstant());
-        this.stageLu = new double[stages.stages.size()][];
-        this.stagePivot = new int[stages.stages.size()][];
-        if (constantBlock) {
-            for (int g = 0; g < stages.stages.size(); g++) {
-                Stages.Stage st = stages.stages.get(g);
-                int m = st.size();
-                stageLu[g] = new double[m * m];
-                stagePivot[g] = new int[m];
-                for (int j = 0; j < m; j++) {
-                    for (int k = 0; k < m; k++) {
-                        stageLu[g][j * m + k] = choice.jacobian[st.laws()[j] * nOut + completed[st.vars()[k]]];
-                    }
-                }
-                if (!DenseLu.factor(stageLu[g], m, stagePivot[g])) {
-                    throw new AssertionError("a block with finite condition number did not factor");
-                }
-            }
-            this.constantLu = new double[n * n];
-            for (int i = 0; i < n; i++) {
-                for (int k = 0; k < n; k++) {
-                    constantLu[i * n + k] = choice.jacobian[i * nOut + completed[k]];
-                }
-            }
-            this.constantPivot = new int[n];
-            if (!DenseLu.factor(constantLu, n, constantPivot)) {
-                throw new AssertionError("a block with finite condition number did not factor");
-            }
-        } else {
-            this.constantLu = null;
-            this.constantPivot = null;
-        }
-        if (tier == Tier.CONSTANT_AFFINE) {
-            double[][] fold = ConstantAffineFold.fold(this, choice.jacobian);
-            this.foldM = fold[0];
-            this.foldN = fold[1];
-            this.foldK = fold[2];
-        } else {
-            this.foldM = null;
-            this.foldN = null;
-            this.foldK = null;
-        }
-        this.warnings = List.copyOf(notes);
-        this.solve = new CompletionSolve(this);
-    }
-
-    private Declaration guessFor(int output) {
-        String name = laws.outputNames().get(output);
-        for (Declaration d : laws.declarations()) {
-            if (d instanceof Declaration.Guess g) {
-                Expr t = g.target();
-                String base = t instanceof Expr.Name nm ? nm.name() : t instanceof Expr.Index ix ? ix.name()
-                        : ((Expr.Slice) t).name();
-                if (name.equals(base) || name.startsWith(base + "[")) {
-                    return d;
-                }
-            }
-        }
-        return null;
-    }
-
-    private Tier classify() {
-        Set<Integer> completedVars = new HashSet<>();
-        for (int o : completed) {
-            completedVars.add(nIn + o);
-        }
-        boolean allConstant = true;
-        for (int i = 0; i < n; i++) {
-            for (Map.Entry<Integer, Term> e : expanded.gradient(i).entrySet()) {
-                Term d = e.getValue();
-                if (d.kind() != Term.Kind.CONST) {
-                    allConstant = false;
-                }
-                if (completedVars.contains(e.getKey())) {
-                    for (int v : d.variables()) {
-                        if (completedVars.contains(v)) {
-                            return Tier.NONLINEAR;
-                        }
-                    }
-                }
-            }
-        }
-        return allConstant ? Tier.CONSTANT_AFFINE : Tier.AFFINE;
-    }
-
-    /** @return whether some law of the stage has a derivative, with respect to a stage output, that uses one */
-    private boolean stageIsNonlinear(Stages.Stage st) {
-        Set<Integer> vars = new HashSet<>();
-        for (int k : st.vars()) {
-            vars.add(nIn + completed[k]);
-        }
-        for (int i : st.laws()) {
-            for (Map.Entry<Integer, Term> e : expanded.gradient(i).entrySet()) {
-                if (vars.contains(e.getKey())) {
-                    for (int v : e.getValue().variables()) {
-                        if (vars.contains(v)) {
-                            return true;
-                        }
-                    }
-                }
-            }
-        }
-        return false;
-    }
-
-    private boolean blockIsConstant() {
-        for (int i = 0; i < n; i++) {
-            for (Map.Entry<Integer, Term> e : expanded.gradient(i).entrySet()) {
-                int v = e.getKey() - nIn;
-                if (v >= 0 && role[v] >= 0 && e.getValue().kind() != Term.Kind.CONST) {
-                    return false;
-                }
-            }
-        }
-        return true;
+        this.nIn = plan.inputWidth();
+        this.nOut = plan.outputWidth();
+        this.nFree = plan.freeWidth();
     }
 
     // ---- description -----------------------------------------------------------------------------------------
 
     /** @return the law set */
     public LawSet laws() {
-        return laws;
+        return plan.laws();
     }
 
     /** @return how the laws are solved */
     public Tier tier() {
-        return tier;
+        return plan.tier();
     }
 
     /** @return the 2-norm condition number of ∂C/∂y_c at the reference point */
     public double condition() {
-        return condition;
+        return plan.condition();
     }
 
     /** @return notes from the build: the automatic choice, ill-conditioning, missing guesses */
     public List<String> warnings() {
-        return warnings;
+        return plan.warnings();
     }
 
     /** @return the bad-sample policy */
@@ -591,31 +258,31 @@ public final class Completion {
 
     /** @return the free output elements (what the network predicts), as indices into the declared outputs */
     public int[] freeOutputs() {
-        return free.clone();
+        return plan.free().clone();
     }
 
     /** @return the completed output elements, as indices into the declared outputs, in solve order */
     public int[] completedOutputs() {
-        return completed.clone();
+        return plan.completed().clone();
     }
 
     /** @return names of the free output elements, {@code name} or {@code name[i]} */
     public List<String> freeNames() {
-        return names(free);
+        return names(plan.free());
     }
 
     /** @return names of the completed output elements */
     public List<String> completedNames() {
-        return names(completed);
+        return names(plan.completed());
     }
 
     /** @return the name of each column of the full output vector, in this completion's layout */
     public List<String> columns() {
         if (layout == Layout.DECLARED) {
-            return laws.outputNames();
+            return plan.laws().outputNames();
         }
-        List<String> c = new ArrayList<>(names(free));
-        c.addAll(names(completed));
+        List<String> c = new ArrayList<>(names(plan.free()));
+        c.addAll(names(plan.completed()));
         return c;
     }
 
@@ -644,18 +311,19 @@ public final class Completion {
     /**
      * Completes a batch in double precision.
      *
-     * @param x      inputs, {@code batch * inputWidth()} values in declared units (null when there are none); read only
-     * @param z      free outputs, {@code batch * freeWidth()} values in {@link #freeOutputs()} order; read only
-     * @param batch  number of samples
-     * @param y      output buffer of {@code batch * outputWidth()} values in this completion's layout
-     * @param status optional buffer of {@code batch} bytes for {@link SampleStatus} codes (null to skip)
-     * @param ws     this thread's workspace
+     * @param x         inputs, {@code batch * inputWidth()} values in declared units (null when there are none);
+     *                  read only
+     * @param z         free outputs, {@code batch * freeWidth()} values in {@link #freeOutputs()} order; read only
+     * @param batch     number of samples
+     * @param y         output buffer, modified: {@code batch * outputWidth()} values in this completion's layout
+     * @param status    optional output buffer of {@code batch} bytes for {@link SampleStatus} codes (null to skip)
+     * @param workspace this thread's workspace, or null to allocate one for this call
      * @throws EnforcementException under {@link OnBadSample#THROW} for the first sample that cannot be enforced (what
      *         {@code y} then holds is unspecified)
-     * @throws IllegalArgumentException when an array is too short
+     * @throws IllegalArgumentException when an array is too short or the workspace belongs to another completion
      */
-    public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace ws) {
-        forward(x, z, batch, y, status, ws, BoundCheck.EVERY_SAMPLE);
+    public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace workspace) {
+        forward(x, z, batch, y, status, workspace, BoundCheck.EVERY_SAMPLE);
     }
 
     /**
@@ -665,12 +333,11 @@ public final class Completion {
      *
      * @see #forward(double[], double[], int, double[], byte[], Workspace)
      */
-    public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace ws,
+    public void forward(double[] x, double[] z, int batch, double[] y, byte[] status, Workspace workspace,
             BoundCheck check) {
         if (check == null) {
             throw new IllegalArgumentException("check must be BoundCheck.EVERY_SAMPLE or BoundCheck.SKIP, not null");
         }
-        boolean certify = check == BoundCheck.EVERY_SAMPLE;
         need("x", x, (long) batch * nIn);
         need("z", z, (long) batch * nFree);
         need("y", y, (long) batch * nOut);
@@ -680,31 +347,23 @@ public final class Completion {
         if (batch == 0) {
             return;
         }
-        ws.ensure(this, batch);
+        Workspace ws = mine(workspace);
+        ws.ensure(batch);
         // in declared order the caller's buffer is the solve's (unless it is also an input)
         double[] full = layout == Layout.DECLARED && y != x && y != z ? y : ws.y;
         byte[] st = ws.status;
-        // the fold finds non-finite inputs itself
-        solve.scatterFree(x, z, batch, full, tier == Tier.CONSTANT_AFFINE ? null : st);
-        switch (tier) {
-            case CONSTANT_AFFINE:
-                solve.forwardConstantAffine(x, z, batch, full, st);
-                if (certify) {
-                    solve.refineAll(x, batch, full, st, ws);
+        ws.solver.forward(x, z, batch, full, st, check == BoundCheck.EVERY_SAMPLE);
+        if (policy == OnBadSample.THROW) {
+            for (int s = 0; s < batch; s++) {
+                if (st[s] != SampleStatus.OK) {
+                    throw failures.failure(s, st[s]);
                 }
-                break;
-            case AFFINE:
-                solve.forwardAffine(x, batch, full, st, ws, certify);
-                break;
-            default:
-                solve.forwardNewton(x, batch, full, st, ws, certify);
-                break;
+            }
         }
-        if (!certify) {
-            // the certifying evaluation would have caught an overflow as a residual that is not finite
-            solve.markNonFiniteResults(batch, full, st);
+        columns.toLayout(batch, full, st, y, layout == Layout.FREE_FIRST);
+        if (status != null) {
+            System.arraycopy(st, 0, status, 0, batch);
         }
-        finish(batch, full, st, y, status);
     }
 
     /**
@@ -713,21 +372,25 @@ public final class Completion {
      *
      * @see #forward(double[], double[], int, double[], byte[], Workspace)
      */
-    public void forward(float[] x, float[] z, int batch, float[] y, byte[] status, Workspace ws) {
-        forward(x, z, batch, y, status, ws, BoundCheck.EVERY_SAMPLE);
+    public void forward(float[] x, float[] z, int batch, float[] y, byte[] status, Workspace workspace) {
+        forward(x, z, batch, y, status, workspace, BoundCheck.EVERY_SAMPLE);
     }
 
     /**
      * Float variant of {@link #forward(double[], double[], int, double[], byte[], Workspace, BoundCheck)}.
+     *
+     * @param y output buffer, modified: {@code batch * outputWidth()} values
      */
-    public void forward(float[] x, float[] z, int batch, float[] y, byte[] status, Workspace ws, BoundCheck check) {
+    public void forward(float[] x, float[] z, int batch, float[] y, byte[] status, Workspace workspace,
+            BoundCheck check) {
         need("x", x, (long) batch * nIn);
         need("z", z, (long) batch * nFree);
         need("y", y, (long) batch * nOut);
         if (batch == 0) {
             return;
         }
-        ws.ensure(this, batch);
+        Workspace ws = mine(workspace);
+        ws.ensure(batch);
         widen(x, ws.x, batch * nIn);
         widen(z, ws.z, batch * nFree);
         forward(ws.x, ws.z, batch, ws.out, status, ws, check);
@@ -736,159 +399,111 @@ public final class Completion {
         }
     }
 
-    private void finish(int batch, double[] full, byte[] st, double[] y, byte[] status) {
-        for (int s = 0; s < batch; s++) {
-            if (st[s] != SampleStatus.OK && policy == OnBadSample.THROW) {
-                throw failure(s, st[s]);
-            }
-        }
-        for (int s = 0; s < batch; s++) {
-            boolean bad = st[s] != SampleStatus.OK;
-            if (layout == Layout.DECLARED) {
-                if (bad) {
-                    Arrays.fill(y, s * nOut, (s + 1) * nOut, Double.NaN);
-                } else if (full != y) {
-                    System.arraycopy(full, s * nOut, y, s * nOut, nOut);
-                }
-            } else {
-                for (int f = 0; f < nFree; f++) {
-                    y[s * nOut + f] = bad ? Double.NaN : full[s * nOut + free[f]];
-                }
-                for (int k = 0; k < n; k++) {
-                    y[s * nOut + nFree + k] = bad ? Double.NaN : full[s * nOut + completed[k]];
-                }
-            }
-            if (status != null) {
-                status[s] = st[s];
-            }
-        }
-    }
-
-    private EnforcementException failure(int s, byte code) {
-        List<String> lawNames = new ArrayList<>();
-        for (int i = 0; i < n; i++) {
-            lawNames.add(expanded.name(i));
-        }
-        String laws = String.join(", ", lawNames.stream().map(l -> "'" + l + "'").toList());
-        String what;
-        switch (code) {
-            case SampleStatus.NOT_FINITE:
-                what = "an input or free output is NaN or infinite";
-                break;
-            case SampleStatus.SINGULAR:
-                what = "the laws " + laws + " are singular in the completed outputs "
-                        + String.join(", ", completedNames()) + " at this sample (their Jacobian block has no inverse)"
-                        + (tier == Tier.NONLINEAR ? "; if this happens where Newton starts, give a 'guess' for the"
-                        + " completed outputs away from that point" : "");
-                break;
-            default:
-                what = tier == Tier.NONLINEAR
-                        ? "the residuals of " + laws + " did not reach rounding level within " + maxIterations
-                        + " Newton iterations; give a 'guess' for the completed outputs or check the inputs"
-                        : "the residuals of " + laws + " stay above rounding level after the solve and one"
-                        + " refinement (the system is nearly singular at this sample)";
-                break;
-        }
-        return new EnforcementException(s, code, lawNames, "sample " + s + ": " + what
-                + " (use OnBadSample.MASK to get NaN rows and a status mask instead)");
-    }
-
     // ---- gradients -------------------------------------------------------------------------------------------
 
     /**
      * Vector-Jacobian product: maps gradients on the outputs to gradients on the free outputs (and inputs), by
      * the implicit function theorem at the solution {@code y}.
      *
-     * @param x     inputs of the forward call (null when there are none); read only
-     * @param y     outputs the forward call returned (this completion's layout); read only
-     * @param gy    upstream gradients on y, same layout; read only
-     * @param batch number of samples
-     * @param gz    output buffer, {@code batch * freeWidth()} values
-     * @param gx    optional output buffer, {@code batch * inputWidth()} values (null to skip)
-     * @param ws    this thread's workspace
+     * @param x         inputs of the forward call (null when there are none); read only
+     * @param y         outputs the forward call returned (this completion's layout); read only
+     * @param gradOut   upstream gradients ∂L/∂y on the outputs, same layout; read only
+     * @param batch     number of samples
+     * @param gradZ     output buffer, modified: ∂L/∂z, {@code batch * freeWidth()} values
+     * @param gradX     optional output buffer, modified: ∂L/∂x, {@code batch * inputWidth()} values (null to skip)
+     * @param workspace this thread's workspace, or null to allocate one for this call
      * @throws EnforcementException under {@link OnBadSample#THROW} when A is singular at a sample (under MASK its
      *         gradients are NaN)
+     * @throws IllegalArgumentException when an array is too short or the workspace belongs to another completion
      */
-    public void backward(double[] x, double[] y, double[] gy, int batch, double[] gz, double[] gx, Workspace ws) {
+    public void backward(double[] x, double[] y, double[] gradOut, int batch, double[] gradZ, double[] gradX,
+            Workspace workspace) {
         need("x", x, (long) batch * nIn);
         need("y", y, (long) batch * nOut);
-        need("gy", gy, (long) batch * nOut);
-        need("gz", gz, (long) batch * nFree);
-        if (gx != null) {
-            need("gx", gx, (long) batch * nIn);
+        need("gradOut", gradOut, (long) batch * nOut);
+        need("gradZ", gradZ, (long) batch * nFree);
+        if (gradX != null) {
+            need("gradX", gradX, (long) batch * nIn);
         }
         if (batch == 0) {
             return;
         }
-        ws.ensure(this, batch);
+        Workspace ws = mine(workspace);
+        ws.ensure(batch);
         double[] full = y;
-        double[] g = gy;
+        double[] g = gradOut;
         if (layout != Layout.DECLARED) {
             // the solve reads outputs and gradients in declared order
             full = ws.y;
             g = ws.g;
-            for (int s = 0; s < batch; s++) {
-                for (int c = 0; c < nOut; c++) {
-                    int o = outputAt(c);
-                    full[s * nOut + o] = y[s * nOut + c];
-                    g[s * nOut + o] = gy[s * nOut + c];
-                }
-            }
+            columns.fromFreeFirst(batch, y, full);
+            columns.fromFreeFirst(batch, gradOut, g);
         }
-        int singular = solve.backward(tier == Tier.CONSTANT_AFFINE, policy == OnBadSample.THROW, x, batch, full, g, gz,
-                gx, ws);
+        int singular = ws.solver.backward(x, batch, full, g, gradZ, gradX, policy == OnBadSample.THROW);
         if (singular >= 0) {
-            throw failure(singular, SampleStatus.SINGULAR);
+            throw failures.failure(singular, SampleStatus.SINGULAR);
         }
     }
 
-    /** Float variant of {@link #backward(double[], double[], double[], int, double[], double[], Workspace)}. */
-    public void backward(float[] x, float[] y, float[] gy, int batch, float[] gz, float[] gx, Workspace ws) {
+    /**
+     * Float variant of {@link #backward(double[], double[], double[], int, double[], double[], Workspace)}: widened
+     * to double, computed in double, rounded once.
+     *
+     * @param gradZ output buffer, modified: {@code batch * freeWidth()} values
+     * @param gradX optional output buffer, modified: {@code batch * inputWidth()} values (null to skip)
+     * @throws IllegalArgumentException when an array is too short
+     */
+    public void backward(float[] x, float[] y, float[] gradOut, int batch, float[] gradZ, float[] gradX,
+            Workspace workspace) {
         need("x", x, (long) batch * nIn);
         need("y", y, (long) batch * nOut);
-        need("gy", gy, (long) batch * nOut);
+        need("gradOut", gradOut, (long) batch * nOut);
+        need("gradZ", gradZ, (long) batch * nFree);
+        if (gradX != null) {
+            need("gradX", gradX, (long) batch * nIn);
+        }
         if (batch == 0) {
             return;
         }
-        ws.ensure(this, batch);
-        double[] xd = ws.x;
-        widen(x, xd, batch * nIn);
-        double[] yd = ws.out;
-        widen(y, yd, batch * nOut);
-        double[] gyd = ws.gyFloat;
-        widen(gy, gyd, batch * nOut);
-        backward(xd, yd, gyd, batch, ws.gz, gx == null ? null : ws.gx, ws);
+        Workspace ws = mine(workspace);
+        ws.ensure(batch);
+        widen(x, ws.x, batch * nIn);
+        widen(y, ws.out, batch * nOut);
+        widen(gradOut, ws.gyFloat, batch * nOut);
+        backward(ws.x, ws.out, ws.gyFloat, batch, ws.gz, gradX == null ? null : ws.gx, ws);
         for (int i = 0; i < batch * nFree; i++) {
-            gz[i] = (float) ws.gz[i];
+            gradZ[i] = (float) ws.gz[i];
         }
-        if (gx != null) {
+        if (gradX != null) {
             for (int i = 0; i < batch * nIn; i++) {
-                gx[i] = (float) ws.gx[i];
+                gradX[i] = (float) ws.gx[i];
             }
         }
     }
 
     /**
-     * Full per-sample Jacobians of the outputs at the solution: dy/dz (outputWidth × freeWidth, row-major, rows in
-     * this completion's layout) and dy/dx (outputWidth × inputWidth).
+     * Full per-sample Jacobians of the outputs at the solution: {@code dzOut} = ∂y/∂z (outputWidth × freeWidth,
+     * row-major, rows in this completion's layout) and {@code dxOut} = ∂y/∂x (outputWidth × inputWidth). Costs
+     * outputWidth vector-Jacobian products per batch, and allocates their buffers.
      *
-     * @param x     inputs (null when there are none)
-     * @param y     outputs from forward, this completion's layout
-     * @param batch number of samples
-     * @param dydz  output buffer, {@code batch * outputWidth * freeWidth} values, or null
-     * @param dydx  output buffer, {@code batch * outputWidth * inputWidth} values, or null
-     * @param ws    this thread's workspace
+     * @param x         inputs (null when there are none); read only
+     * @param y         outputs from forward, this completion's layout; read only
+     * @param batch     number of samples
+     * @param dzOut     optional output buffer, modified: {@code batch * outputWidth * freeWidth} values (null to skip)
+     * @param dxOut     optional output buffer, modified: {@code batch * outputWidth * inputWidth} values (null to skip)
+     * @param workspace this thread's workspace, or null to allocate one for this call
      */
-    public void jacobians(double[] x, double[] y, int batch, double[] dydz, double[] dydx, Workspace ws) {
-        if (dydz != null) {
-            need("dydz", dydz, (long) batch * nOut * nFree);
+    public void jacobians(double[] x, double[] y, int batch, double[] dzOut, double[] dxOut, Workspace workspace) {
+        if (dzOut != null) {
+            need("dzOut", dzOut, (long) batch * nOut * nFree);
         }
-        if (dydx != null) {
-            need("dydx", dydx, (long) batch * nOut * nIn);
+        if (dxOut != null) {
+            need("dxOut", dxOut, (long) batch * nOut * nIn);
         }
+        Workspace ws = mine(workspace);
         double[] gy = new double[batch * nOut];
         double[] gz = new double[batch * nFree];
-        double[] gx = dydx == null ? null : new double[batch * nIn];
+        double[] gx = dxOut == null ? null : new double[batch * nIn];
         // one vector-Jacobian product per output row: exact, and reuses the backward path of every tier
         for (int c = 0; c < nOut; c++) {
             Arrays.fill(gy, 0);
@@ -897,11 +512,11 @@ public final class Completion {
             }
             backward(x, y, gy, batch, gz, gx, ws);
             for (int s = 0; s < batch; s++) {
-                if (dydz != null) {
-                    System.arraycopy(gz, s * nFree, dydz, (s * nOut + c) * nFree, nFree);
+                if (dzOut != null) {
+                    System.arraycopy(gz, s * nFree, dzOut, (s * nOut + c) * nFree, nFree);
                 }
-                if (dydx != null) {
-                    System.arraycopy(gx, s * nIn, dydx, (s * nOut + c) * nIn, nIn);
+                if (dxOut != null) {
+                    System.arraycopy(gx, s * nIn, dxOut, (s * nOut + c) * nIn, nIn);
                 }
             }
         }
@@ -909,60 +524,24 @@ public final class Completion {
 
     // ---- helpers ---------------------------------------------------------------------------------------------
 
-    /** @return the declared output index of column {@code c} in this completion's layout */
-    private int outputAt(int c) {
-        if (layout == Layout.DECLARED) {
-            return c;
+    private Workspace mine(Workspace ws) {
+        if (ws == null) {
+            return newWorkspace();
         }
-        return c < nFree ? free[c] : completed[c - nFree];
-    }
-
-    private int[] indices(String[] elements, String what) {
-        List<String> names = laws.outputNames();
-        int[] out = new int[elements.length];
-        Set<Integer> seen = new HashSet<>();
-        for (int i = 0; i < elements.length; i++) {
-            int o = names.indexOf(elements[i].replace(" ", ""));
-            if (o < 0) {
-                throw laws.problem(null, "no output element '" + elements[i] + "' for the " + what + "; the outputs"
-                        + " are " + String.join(", ", names));
-            }
-            if (!seen.add(o)) {
-                throw laws.problem(null, "output " + elements[i] + " is named twice as " + what);
-            }
-            out[i] = o;
+        if (ws.owner != this) {
+            throw new IllegalArgumentException("the workspace belongs to another completion; use this completion's"
+                    + " newWorkspace() (one per thread)");
         }
-        return out;
+        return ws;
     }
 
     private List<String> names(int[] outputs) {
-        List<String> all = laws.outputNames();
+        List<String> all = plan.laws().outputNames();
         List<String> out = new ArrayList<>(outputs.length);
         for (int o : outputs) {
             out.add(all.get(o));
         }
         return out;
-    }
-
-    /**
-     * A generic reference point: fixed pseudo-random values in [0.5, 1.5), so special points (equal velocities in
-     * a collision, a symmetric mixture) where laws happen to be dependent are not met by accident.
-     */
-    private static double[] generic(int k, long seed) {
-        java.util.SplittableRandom random = new java.util.SplittableRandom(seed);
-        double[] v = new double[k];
-        for (int i = 0; i < k; i++) {
-            v[i] = 0.5 + random.nextDouble();
-        }
-        return v;
-    }
-
-    private static int[] range(int k) {
-        int[] v = new int[k];
-        for (int i = 0; i < k; i++) {
-            v[i] = i;
-        }
-        return v;
     }
 
     private static void widen(float[] from, double[] to, int count) {

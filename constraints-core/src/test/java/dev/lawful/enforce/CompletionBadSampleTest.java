@@ -308,8 +308,35 @@ class CompletionBadSampleTest {
         assertEquals("status must hold at least 2 bytes, found 1", assertThrows(
                 IllegalArgumentException.class, () -> c.forward(new double[4], new double[2], 2, new double[4],
                         new byte[1], ws)).getMessage());
-        assertEquals("gy must hold at least 4 values for this batch, found 2", assertThrows(
+        // the upstream gradient is named as its parameter, gradOut, in Completion and Projection alike
+        assertEquals("gradOut must hold at least 4 values for this batch, found 2", assertThrows(
                 IllegalArgumentException.class, () -> c.backward(new double[4], new double[4], new double[2], 2,
                         new double[2], null, ws)).getMessage());
+        // the float backward checks its output buffers too, before any work
+        assertEquals("gradZ must hold at least 2 values for this batch, found 1", assertThrows(
+                IllegalArgumentException.class, () -> c.backward(new float[4], new float[4], new float[4], 2,
+                        new float[1], null, ws)).getMessage());
+        assertEquals("gradX must hold at least 4 values for this batch, found 3", assertThrows(
+                IllegalArgumentException.class, () -> c.backward(new float[4], new float[4], new float[4], 2,
+                        new float[2], new float[3], ws)).getMessage());
+    }
+
+    @Test
+    void aForeignWorkspaceIsRefusedAndNoneAllocatesOne() {
+        Completion c = Completion.of(CONSTANT);
+        Completion other = Completion.of(CONSTANT);
+        double[] x = {1, 2, 3, 4};
+        double[] z = {0.5, 0.25};
+        IllegalArgumentException foreign = assertThrows(IllegalArgumentException.class,
+                () -> c.forward(x, z, 2, new double[4], null, other.newWorkspace()));
+        assertEquals("the workspace belongs to another completion; use this completion's newWorkspace() (one per"
+                + " thread)", foreign.getMessage());
+        assertThrows(IllegalArgumentException.class, () -> c.backward(x, new double[4], new double[4], 2,
+                new double[2], null, other.newWorkspace()));
+        double[] withNone = new double[4];
+        double[] withOwn = new double[4];
+        c.forward(x, z, 2, withNone, null, null);
+        c.forward(x, z, 2, withOwn, null, c.newWorkspace());
+        assertArrayEquals(withOwn, withNone, 0.0, "a null workspace computes the same outputs");
     }
 }

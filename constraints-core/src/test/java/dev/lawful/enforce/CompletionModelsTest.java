@@ -21,9 +21,9 @@ import org.junit.jupiter.api.Test;
  * exactly and can evaluate it independently of the library (in double-double, {@link #exactCheck}); the tests here
  * check that the generated text means what the model says, so the other tests may rely on it.
  */
-class CompletionModelsTest {
+public class CompletionModelsTest {
     /** Unit roundoff of double, 2⁻⁵³, as in the documented bound. */
-    static final double U = 0x1p-53;
+    public static final double U = 0x1p-53;
     private static final long GOLDEN = 0x9E3779B97F4A7C15L;
 
     // ---- trials: repeatable randomised checks on JUnit alone -------------------------------------------------
@@ -32,7 +32,7 @@ class CompletionModelsTest {
      * Runs {@code property} on {@code tries} generators seeded from {@code seed} and the trial number; a failure names
      * the seed, and {@code -Dlawful.trial.seed=S} reruns that one trial alone.
      */
-    static void trials(String name, long seed, int tries, Consumer<SplittableRandom> property) {
+    public static void trials(String name, long seed, int tries, Consumer<SplittableRandom> property) {
         String only = System.getProperty("lawful.trial.seed");
         if (only != null) {
             property.accept(new SplittableRandom(Long.parseLong(only)));
@@ -49,12 +49,12 @@ class CompletionModelsTest {
         }
     }
 
-    static double uniform(SplittableRandom r, double from, double to) {
+    public static double uniform(SplittableRandom r, double from, double to) {
         return from + (to - from) * r.nextDouble();
     }
 
     /** A magnitude in [from, to) with a random sign. */
-    static double signed(SplittableRandom r, double from, double to) {
+    public static double signed(SplittableRandom r, double from, double to) {
         return (r.nextBoolean() ? 1 : -1) * uniform(r, from, to);
     }
 

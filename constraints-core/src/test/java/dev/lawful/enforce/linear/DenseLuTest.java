@@ -1,4 +1,4 @@
-package dev.lawful.enforce;
+package dev.lawful.enforce.linear;
 
 import static dev.lawful.enforce.CompletionModelsTest.U;
 import static dev.lawful.enforce.CompletionModelsTest.signed;
@@ -8,6 +8,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import dev.lawful.enforce.CompletionModelsTest;
 import java.util.Arrays;
 import java.util.SplittableRandom;
 import org.apache.commons.math3.linear.Array2DRowRealMatrix;

@@ -1,10 +1,10 @@
-package dev.lawful.enforce;
+package dev.lawful.enforce.linear;
 
 /**
  * LU factorisation with partial pivoting of small dense n×n systems held in caller-owned arrays, so a per-sample
  * solve allocates nothing. Matrices are row-major {@code a[i*n + j]}.
  */
-final class DenseLu {
+public final class DenseLu {
     private DenseLu() {
     }
 
@@ -17,12 +17,12 @@ final class DenseLu {
      * @return false when a pivot is below {@code 1e-14} times the largest entry of the matrix (singular to working
      *         precision), true otherwise
      */
-    static boolean factor(double[] a, int n, int[] pivot) {
+    public static boolean factor(double[] a, int n, int[] pivot) {
         return factor(a, n, pivot, 0, 0);
     }
 
     /** {@link #factor(double[], int, int[])} on the matrix at {@code a[ao..]} with pivots at {@code pivot[po..]}. */
-    static boolean factor(double[] a, int n, int[] pivot, int ao, int po) {
+    public static boolean factor(double[] a, int n, int[] pivot, int ao, int po) {
         double largest = 0;
         for (int i = 0; i < n * n; i++) {
             largest = Math.max(largest, Math.abs(a[ao + i]));
@@ -67,12 +67,12 @@ final class DenseLu {
     }
 
     /** Solves A x = b in place ({@code b} becomes x) with the factors from {@link #factor}. */
-    static void solve(double[] lu, int n, int[] pivot, double[] b, int offset) {
+    public static void solve(double[] lu, int n, int[] pivot, double[] b, int offset) {
         solve(lu, n, pivot, b, offset, 0, 0);
     }
 
     /** Solves with the factors at {@code lu[lo..]} and pivots at {@code pivot[po..]}. */
-    static void solve(double[] lu, int n, int[] pivot, double[] b, int offset, int lo, int po) {
+    public static void solve(double[] lu, int n, int[] pivot, double[] b, int offset, int lo, int po) {
         for (int k = 0; k < n; k++) {
             int p = pivot[po + k];
             if (p != k) {
@@ -98,12 +98,12 @@ final class DenseLu {
     }
 
     /** Solves Aᵀ x = b in place with the factors of A from {@link #factor}. */
-    static void solveTransposed(double[] lu, int n, int[] pivot, double[] b, int offset) {
+    public static void solveTransposed(double[] lu, int n, int[] pivot, double[] b, int offset) {
         solveTransposed(lu, n, pivot, b, offset, 0, 0);
     }
 
     /** Solves Aᵀ x = b with the factors at {@code lu[lo..]} and pivots at {@code pivot[po..]}. */
-    static void solveTransposed(double[] lu, int n, int[] pivot, double[] b, int offset, int lo, int po) {
+    public static void solveTransposed(double[] lu, int n, int[] pivot, double[] b, int offset, int lo, int po) {
         // P A = L U, so Aᵀ x = b is Uᵀ Lᵀ P x = b: forward with Uᵀ, back with Lᵀ, then undo the row swaps
         for (int i = 0; i < n; i++) {
             double s = b[offset + i];

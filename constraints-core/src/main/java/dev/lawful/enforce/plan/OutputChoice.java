@@ -1,4 +1,4 @@
-package dev.lawful.enforce;
+package dev.lawful.enforce.plan;
 
 import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.LawEvaluator;
@@ -31,14 +31,14 @@ final class OutputChoice {
     /** dC/dy at the reference point, n×p row-major. */
     final double[] jacobian;
 
-    OutputChoice(LawSet laws, double[] xRef, double[] yRef) {
+    OutputChoice(LawSet laws, ReferencePoint reference) {
         this.laws = laws;
         this.expanded = laws.expand();
         this.n = expanded.size();
         this.p = laws.outputWidth();
         LawEvaluator ev = laws.evaluator();
         double[] jy = new double[ev.outputNonzeros()];
-        ev.evaluate(xRef, yRef, 1, null, null, jy, null);
+        ev.evaluate(reference.x(), reference.y(), 1, null, null, jy, null);
         this.jacobian = new double[n * p];
         for (int i = 0; i < n; i++) {
             int[] cols = ev.outputColumns(i);

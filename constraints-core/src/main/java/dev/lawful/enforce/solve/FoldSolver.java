@@ -1,0 +1,209 @@
+package dev.lawful.enforce.solve;
+
+import dev.lawful.enforce.SampleStatus;
+import dev.lawful.enforce.plan.CompletionPlan;
+import dev.lawful.enforce.plan.Fold;
+import java.util.Arrays;
+
+/**
+ * The constant-affine tier: y_c = M z + N x + k for every sample (the fold made at build time), then, when
+ * certifying, the check of the bound and one refinement with the constant stage blocks where a sample misses it.
+ * Backward: ḡ_z = ḡ_f + Mᵀḡ_c and ḡ_x = Nᵀḡ_c.
+ */
+final class FoldSolver implements TierSolver {
+    private final Columns columns;
+    private final Certifier certifier;
+    private final StageBlocks blocks;
+    private final SolveWork work;
+    private final double[] m;
+    private final double[] nx;
+    private final double[] k;
+    private final int[] completed;
+    private final int n;
+    private final int nIn;
+    private final int nOut;
+    private final int nFree;
+
+    FoldSolver(CompletionPlan plan, Columns columns) {
+        Fold fold = plan.fold();
+        this.columns = columns;
+        this.certifier = new Certifier(plan);
+        this.blocks = new StageBlocks(plan, certifier);
+        this.work = new SolveWork(plan, false);
+        this.m = fold.m();
+        this.nx = fold.n();
+        this.k = fold.k();
+        this.completed = plan.completed();
+        this.n = plan.lawCount();
+        this.nIn = plan.inputWidth();
+        this.nOut = plan.outputWidth();
+        this.nFree = plan.freeWidth();
+    }
+
+    @Override
+    public void forward(double[] x, double[] z, int batch, double[] full, byte[] st, boolean certify) {
+        // the fold finds non-finite inputs itself
+        columns.scatterFree(x, z, batch, full, null);
+        for (int s = 0; s < batch; s++) {
+            foldSample(x, z, s, full);
+            int yo = s * nOut;
+            double first = full[yo + completed[0]];
+            if (first - first == 0) {
+                st[s] = SampleStatus.OK;
+            } else {
+                st[s] = Finite.finite(z, s * nFree, nFree) && Finite.finite(x, s * nIn, nIn)
+                        ? SampleStatus.NOT_CONVERGED : SampleStatus.NOT_FINITE;
+            }
+        }
+        if (certify) {
+            work.ensure(batch);
+            blocks.refineAll(x, batch, full, st, work);
+        } else {
+            certifier.markNonFiniteResults(batch, full, st);
+        }
+    }
+
+    /**
+     * The fold for sample s. Every product M_rf·z_f and N_ri·x_i is formed (zero coefficients included), and 0·∞ and
+     * 0·NaN are NaN, so a non-finite input or free output makes every completed output non-finite: the inputs are
+     * scanned only for samples whose first completed output is not finite, to tell a non-finite input (NOT_FINITE)
+     * from an overflow (NOT_CONVERGED).
+     */
+    private void foldSample(double[] x, double[] z, int s, double[] full) {
+        final int[] to = completed;
+        int zo = s * nFree;
+        int xo = s * nIn;
+        int yo = s * nOut;
+        int r = 0;
+        for (; r + 4 <= n; r += 4) {
+            foldFour(x, z, r, zo, xo, yo, full);
+        }
+        for (; r < n; r++) {
+            double v = k[r];
+            for (int f = 0; f < nFree; f++) {
+                v += m[r * nFree + f] * z[zo + f];
+            }
+            for (int i = 0; i < nIn; i++) {
+                v += nx[r * nIn + i] * x[xo + i];
+            }
+            full[yo + to[r]] = v;
+        }
+    }
+
+    /**
+     * Completed outputs r .. r+3 of one sample: four per pass over the sample's free outputs, each summed over even
+     * and odd free outputs separately, eight independent running sums, so the additions overlap instead of
+     * waiting on one another.
+     */
+    private void foldFour(double[] x, double[] z, int r, int zo, int xo, int yo, double[] full) {
+        final double[] m = this.m;
+        final double[] nx = this.nx;
+        final int nf = nFree;
+        final int ni = nIn;
+        double v0 = k[r];
+        double v1 = k[r + 1];
+        double v2 = k[r + 2];
+        double v3 = k[r + 3];
+        double w0 = 0;
+        double w1 = 0;
+        double w2 = 0;
+        double w3 = 0;
+        int m0 = r * nf;
+        int m1 = m0 + nf;
+        int m2 = m1 + nf;
+        int m3 = m2 + nf;
+        int f = 0;
+        for (; f + 2 <= nf; f += 2) {
+            double za = z[zo + f];
+            double zb = z[zo + f + 1];
+            v0 += m[m0 + f] * za;
+            v1 += m[m1 + f] * za;
+            v2 += m[m2 + f] * za;
+            v3 += m[m3 + f] * za;
+            w0 += m[m0 + f + 1] * zb;
+            w1 += m[m1 + f + 1] * zb;
+            w2 += m[m2 + f + 1] * zb;
+            w3 += m[m3 + f + 1] * zb;
+        }
+        if (f < nf) {
+            double za = z[zo + f];
+            v0 += m[m0 + f] * za;
+            v1 += m[m1 + f] * za;
+            v2 += m[m2 + f] * za;
+            v3 += m[m3 + f] * za;
+        }
+        v0 += w0;
+        v1 += w1;
+        v2 += w2;
+        v3 += w3;
+        int n0 = r * ni;
+        for (int i = 0; i < ni; i++) {
+            double xi = x[xo + i];
+            v0 += nx[n0 + i] * xi;
+            v1 += nx[n0 + ni + i] * xi;
+            v2 += nx[n0 + 2 * ni + i] * xi;
+            v3 += nx[n0 + 3 * ni + i] * xi;
+        }
+        full[yo + completed[r]] = v0;
+        full[yo + completed[r + 1]] = v1;
+        full[yo + completed[r + 2]] = v2;
+        full[yo + completed[r + 3]] = v3;
+    }
+
+    @Override
+    public int backward(double[] x, int batch, double[] full, double[] g, double[] gz, double[] gx,
+            boolean throwOnSingular) {
+        for (int s = 0; s < batch; s++) {
+            if (!Finite.finite(full, s * nOut, nOut) || !Finite.finite(g, s * nOut, nOut)) {
+                ImplicitGradient.nanRow(s, nFree, nIn, gz, gx);
+                continue;
+            }
+            columns.gatherFree(g, s, gz);
+            if (gx != null) {
+                Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
+            }
+            int r = 0;
+            for (; r + 4 <= n; r += 4) {
+                backwardFour(s, r, g, gz, gx);
+            }
+            for (; r < n; r++) {
+                double gc = g[s * nOut + completed[r]];
+                int mo = r * nFree;
+                for (int f = 0; f < nFree; f++) {
+                    gz[s * nFree + f] += m[mo + f] * gc;
+                }
+                if (gx != null) {
+                    int no = r * nIn;
+                    int xo = s * nIn;
+                    for (int i = 0; i < nIn; i++) {
+                        gx[xo + i] += nx[no + i] * gc;
+                    }
+                }
+            }
+        }
+        return -1;
+    }
+
+    /** ḡ_z += Mᵀḡ_c and ḡ_x += Nᵀḡ_c for completed outputs r .. r+3: rows of M (N) read in order, four per pass. */
+    private void backwardFour(int s, int r, double[] g, double[] gz, double[] gx) {
+        int zo = s * nFree;
+        int go = s * nOut;
+        double g0 = g[go + completed[r]];
+        double g1 = g[go + completed[r + 1]];
+        double g2 = g[go + completed[r + 2]];
+        double g3 = g[go + completed[r + 3]];
+        int m0 = r * nFree;
+        for (int f = 0; f < nFree; f++) {
+            gz[zo + f] = gz[zo + f] + m[m0 + f] * g0 + m[m0 + nFree + f] * g1
+                    + m[m0 + 2 * nFree + f] * g2 + m[m0 + 3 * nFree + f] * g3;
+        }
+        if (gx != null) {
+            int n0 = r * nIn;
+            int xo = s * nIn;
+            for (int i = 0; i < nIn; i++) {
+                gx[xo + i] = gx[xo + i] + nx[n0 + i] * g0 + nx[n0 + nIn + i] * g1
+                        + nx[n0 + 2 * nIn + i] * g2 + nx[n0 + 3 * nIn + i] * g3;
+            }
+        }
+    }
+}

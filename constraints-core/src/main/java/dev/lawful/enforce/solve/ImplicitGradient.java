@@ -1,0 +1,127 @@
+package dev.lawful.enforce.solve;
+
+import dev.lawful.algebra.LawEvaluator;
+import dev.lawful.enforce.linear.DenseLu;
+import dev.lawful.enforce.plan.CompletionPlan;
+import dev.lawful.enforce.plan.ConstantBlocks;
+import java.util.Arrays;
+
+/**
+ * The vector-Jacobian product of a completion at its solution, by the implicit function theorem: solve Aᵀλ = ḡ_c
+ * with A = ∂C/∂y_c, then ḡ_z = ḡ_f − (∂C/∂z)ᵀλ and ḡ_x = −(∂C/∂x)ᵀλ. The same formula is exact for the affine and
+ * the nonlinear tiers, so gradients never unroll Newton. Immutable; the work arrays are the caller's.
+ */
+final class ImplicitGradient {
+    private final LawEvaluator evaluator;
+    private final ConstantBlocks constant;
+    private final int[] entryLaw;
+    private final int[] entryRole;
+    private final int[] inEntryLaw;
+    private final int[] inEntryColumn;
+    private final int[] completed;
+    private final int[] free;
+    private final int n;
+    private final int nIn;
+    private final int nOut;
+    private final int nFree;
+
+    ImplicitGradient(CompletionPlan plan) {
+        this.evaluator = plan.evaluator();
+        this.constant = plan.blocks();
+        this.entryLaw = plan.entries().entryLaw();
+        this.entryRole = plan.entries().entryRole();
+        this.inEntryLaw = plan.entries().inEntryLaw();
+        this.inEntryColumn = plan.entries().inEntryColumn();
+        this.completed = plan.completed();
+        this.free = plan.free();
+        this.n = plan.lawCount();
+        this.nIn = plan.inputWidth();
+        this.nOut = plan.outputWidth();
+        this.nFree = plan.freeWidth();
+    }
+
+    /**
+     * @param w modified: Jacobians, block factors and λ
+     * @see TierSolver#backward
+     */
+    int backward(double[] x, int batch, double[] full, double[] g, double[] gz, double[] gx, boolean throwOnSingular,
+            SolveWork w) {
+        evaluator.evaluate(x, full, batch, null, null, w.jy, gx == null ? null : w.jx, w.evaluation);
+        double[] lambda = w.vector;
+        for (int s = 0; s < batch; s++) {
+            if (!Finite.finite(full, s * nOut, nOut) || !Finite.finite(g, s * nOut, nOut)) {
+                // a masked sample (NaN outputs) has no gradient either
+                nanRow(s, nFree, nIn, gz, gx);
+                continue;
+            }
+            if (!factorWhole(s, w)) {
+                if (throwOnSingular) {
+                    return s;
+                }
+                nanRow(s, nFree, nIn, gz, gx);
+                continue;
+            }
+            for (int k = 0; k < n; k++) {
+                lambda[k] = g[s * nOut + completed[k]];
+            }
+            if (constant != null) {
+                DenseLu.solveTransposed(constant.wholeLu(), n, constant.wholePivot(), lambda, 0);
+            } else {
+                DenseLu.solveTransposed(w.lu, n, w.pivots, lambda, 0, s * n * n, s * n);
+            }
+            applyLambda(s, g, gz, gx, lambda, w);
+        }
+        return -1;
+    }
+
+    /** ḡ_z = ḡ_f − (∂C/∂z)ᵀλ and ḡ_x = −(∂C/∂x)ᵀλ for sample s. */
+    private void applyLambda(int s, double[] g, double[] gz, double[] gx, double[] lambda, SolveWork w) {
+        int nnz = entryLaw.length;
+        int nnzX = inEntryLaw.length;
+        for (int f = 0; f < nFree; f++) {
+            gz[s * nFree + f] = g[s * nOut + free[f]];
+        }
+        for (int e = 0; e < nnz; e++) {
+            int r = entryRole[e];
+            if (r < 0) {
+                gz[s * nFree + (-r - 1)] -= w.jy[s * nnz + e] * lambda[entryLaw[e]];
+            }
+        }
+        if (gx != null) {
+            Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
+            for (int e = 0; e < nnzX; e++) {
+                gx[s * nIn + inEntryColumn[e]] -= w.jx[s * nnzX + e] * lambda[inEntryLaw[e]];
+            }
+        }
+    }
+
+    /** Builds the whole block A = ∂C/∂y_c of sample s and factors it into the work arrays (unless constant). */
+    private boolean factorWhole(int s, SolveWork w) {
+        if (constant != null) {
+            return true;
+        }
+        int nnz = entryLaw.length;
+        int base = s * n * n;
+        Arrays.fill(w.lu, base, base + n * n, 0.0);
+        for (int e = 0; e < nnz; e++) {
+            int k = entryRole[e];
+            if (k >= 0) {
+                w.lu[base + entryLaw[e] * n + k] = w.jy[s * nnz + e];
+            }
+        }
+        return DenseLu.factor(w.lu, n, w.pivots, base, s * n);
+    }
+
+    /**
+     * NaN gradients for sample s.
+     *
+     * @param gz modified: row s
+     * @param gx optional, modified: row s
+     */
+    static void nanRow(int s, int nFree, int nIn, double[] gz, double[] gx) {
+        Arrays.fill(gz, s * nFree, (s + 1) * nFree, Double.NaN);
+        if (gx != null) {
+            Arrays.fill(gx, s * nIn, (s + 1) * nIn, Double.NaN);
+        }
+    }
+}
