@@ -25,8 +25,13 @@ import org.nd4j.linalg.api.ndarray.INDArray;
 public class LawLayerImpl extends AbstractLayer<LawLayer> {
     private static final long serialVersionUID = 1L;
 
-    private transient Completion.Workspace workspace;
-    private transient Completion workspaceOwner;
+    /** Input slot of the free outputs z; gradient slots of ḡ_y and ḡ_z. */
+    private static final int Z = 0;
+    private static final int GY = 0;
+    private static final int GZ = 1;
+
+    /** The core's workspace, the last solution and the reused buffers (see {@link LawCallState}). */
+    private final LawCallState state = new LawCallState(1, 2);
 
     /**
      * @param conf     the layer's configuration (its layer is a {@link LawLayer})
@@ -43,11 +48,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
 
     /** @return this layer's completion workspace, created on first use */
     protected Completion.Workspace workspace(Completion c) {
-        if (workspace == null || workspaceOwner != c) {
-            workspace = c.newWorkspace();
-            workspaceOwner = c;
-        }
-        return workspace;
+        return state.workspace(c);
     }
 
     /**
@@ -61,52 +62,27 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
 
     /**
      * @return the completed outputs for the current input, in double, declared order ({@code batch × outputWidth});
-     *         in physical units when the layer has an output scaling
+     *         in physical units when the layer has an output scaling; a reused buffer, valid until the second
+     *         solve after this one ({@link LawCallState})
      */
     protected double[] complete(Completion c, int batch, boolean training) {
-        return complete(c, batch, NdArrays.toDouble(input, spareZ), training);
+        return complete(c, batch, state.convert(Z, input), training);
     }
 
     private double[] complete(Completion c, int batch, double[] zIn, boolean training) {
         BoundCheck check = layerConf().getSpec().check(training);
-        // backward follows forward on the same input: reuse that solution rather than solving again (compared by
-        // value, since a workspace may hand the same array back with new contents); an uncertified training
-        // solution never answers a pass that must be certified
-        if (lastY != null && lastOwner == c && (lastCheck == BoundCheck.EVERY_SAMPLE || check == BoundCheck.SKIP)
-                && java.util.Arrays.equals(lastZ, zIn)) {
-            if (zIn != lastZ) {
-                spareZ = zIn;
-            }
-            return lastY;
+        // backward follows forward on the same input: reuse that solution rather than solving again
+        double[] y = state.solution(c, check, zIn);
+        if (y != null) {
+            return y;
         }
         Scaling out = layerConf().checkedOutputScaling(c);
         double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
-        double[] y = NdArrays.reuse(spareY, batch * c.outputWidth());
+        y = state.solutionBuffer(batch * c.outputWidth());
         c.forward(null, z, batch, y, null, workspace(c), check);
-        // the buffers of the previous solution become the spares the next call converts and solves into
-        spareZ = lastZ;
-        spareY = lastY;
-        lastZ = zIn;
-        lastY = y;
-        lastOwner = c;
-        lastCheck = check;
+        state.remember(c, check, y, null, zIn);
         return y;
     }
-
-    /** The last input solved (as converted), its solution, the completion that solved it and how it was checked. */
-    private double[] lastZ;
-    private double[] lastY;
-    private Completion lastOwner;
-    private BoundCheck lastCheck;
-    /**
-     * Buffers reused from call to call (a training step then allocates no conversion arrays): the next input's
-     * conversion, the next solution, and the backward pass's gradients. A buffer handed out by {@link #complete}
-     * stays valid until the second call after it.
-     */
-    private double[] spareZ;
-    private double[] spareY;
-    private double[] spareGy;
-    private double[] spareGz;
 
     /**
      * Completes the input: {@code [batch, freeWidth]} free outputs to {@code [batch, outputWidth]} outputs in
@@ -130,7 +106,7 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
      *         layer has an output scaling)
      */
     double[] outputs(Completion c, int batch, boolean training) {
-        double[] zIn = NdArrays.toDouble(input, spareZ);
+        double[] zIn = state.convert(Z, input);
         double[] y = complete(c, batch, zIn, training);
         Scaling out = layerConf().checkedOutputScaling(c);
         if (out != null) {
@@ -154,10 +130,8 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         NdArrays.batch(epsilon, layerConf().who(), "the gradient on its output", c.outputWidth(), c.columns(),
                 "the layer after it must take all " + c.outputWidth() + " outputs");
         double[] y = complete(c, batch, true);
-        double[] gy = NdArrays.toDouble(epsilon, spareGy);
-        spareGy = gy;
-        double[] gz = NdArrays.reuse(spareGz, batch * c.freeWidth());
-        spareGz = gz;
+        double[] gy = state.gradient(GY, epsilon);
+        double[] gz = state.gradient(GZ, batch * c.freeWidth());
         Scaling scaling = layerConf().checkedOutputScaling(c);
         if (scaling != null) {
             NdArrays.divideByScale(scaling, gy);

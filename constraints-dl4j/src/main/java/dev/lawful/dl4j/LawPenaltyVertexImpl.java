@@ -26,8 +26,8 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
     private static final long serialVersionUID = 1L;
 
     private final LawPenaltyVertex config;
-    private transient Penalty.Workspace workspace;
-    private transient Penalty workspaceOwner;
+    /** Only the core's workspace: the vertex caches no solution and converts into fresh arrays. */
+    private final LawCallState state = new LawCallState(0, 0);
 
     /**
      * @param graph    the graph
@@ -44,14 +44,6 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
 
     private String who() {
         return "law penalty vertex '" + vertexName + "'";
-    }
-
-    private Penalty.Workspace workspace(Penalty pe) {
-        if (workspace == null || workspaceOwner != pe) {
-            workspace = pe.newWorkspace();
-            workspaceOwner = pe;
-        }
-        return workspace;
     }
 
     /** x and ŷ in physical units, after checking widths; {@code [0]} is null when the laws have no inputs. */
@@ -111,7 +103,7 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
         double[][] xy = physical(pe, batch);
         int m = pe.lawCount();
         double[] rho = new double[batch[0] * m];
-        pe.weightedResiduals(xy[0], xy[1], batch[0], rho, workspace(pe));
+        pe.weightedResiduals(xy[0], xy[1], batch[0], rho, state.workspace(pe));
         double root = Math.sqrt(config.getPenaltyWeight());
         for (int i = 0; i < rho.length; i++) {
             rho[i] *= root;
@@ -141,7 +133,7 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
         boolean withX = xy[0] != null;
         double[] gy = new double[batch * laws.outputWidth()];
         double[] gx = withX ? new double[batch * laws.inputWidth()] : null;
-        pe.weightedResidualsBackward(xy[0], xy[1], g, batch, gy, gx, workspace(pe));
+        pe.weightedResidualsBackward(xy[0], xy[1], g, batch, gy, gx, state.workspace(pe));
         Scaling out = config.checkedOutputScaling();
         if (out != null) {
             NdArrays.multiplyByScale(out, gy);

@@ -26,9 +26,16 @@ import org.nd4j.linalg.api.ndarray.INDArray;
 public class LawVertexImpl extends BaseGraphVertex {
     private static final long serialVersionUID = 1L;
 
+    /** Input slots of x and z; gradient slots of ḡ_y, ḡ_z and ḡ_x. */
+    private static final int X = 0;
+    private static final int Z = 1;
+    private static final int GY = 0;
+    private static final int GZ = 1;
+    private static final int GX = 2;
+
     private final LawVertex config;
-    private transient Completion.Workspace workspace;
-    private transient Completion workspaceOwner;
+    /** The core's workspace, the last solution and the reused buffers (see {@link LawCallState}). */
+    private final LawCallState state = new LawCallState(2, 3);
 
     /**
      * @param graph    the graph
@@ -54,11 +61,7 @@ public class LawVertexImpl extends BaseGraphVertex {
 
     /** @return this vertex's completion workspace, created on first use */
     protected Completion.Workspace workspace(Completion c) {
-        if (workspace == null || workspaceOwner != c) {
-            workspace = c.newWorkspace();
-            workspaceOwner = c;
-        }
-        return workspace;
+        return state.workspace(c);
     }
 
     private String who() {
@@ -82,48 +85,22 @@ public class LawVertexImpl extends BaseGraphVertex {
         return bz;
     }
 
-    /** The last inputs solved (as converted), the physical x, the solution, and the completion that solved it. */
-    private double[] lastX;
-    private double[] lastZ;
-    private double[] lastPhysicalX;
-    private double[] lastY;
-    private Completion lastOwner;
-    private BoundCheck lastCheck;
-    /**
-     * Buffers reused from call to call (see {@link LawLayerImpl}): the next inputs' conversions, the next solution
-     * and the backward pass's gradients; a buffer handed out stays valid until the second call after it.
-     */
-    private double[] spareX;
-    private double[] spareZ;
-    private double[] spareY;
-    private double[] spareGy;
-    private double[] spareGz;
-    private double[] spareGx;
-
     /**
      * @return the outputs for the current inputs, in double, declared order, in physical units when the vertex has
      *         scalings; {@code xOut[0]} receives the (physical) x and, when {@code xOut} has two slots,
-     *         {@code xOut[1]} the free outputs as given
+     *         {@code xOut[1]} the free outputs as given; all reused buffers, valid until the second solve after
+     *         this one ({@link LawCallState})
      */
     protected double[] complete(Completion c, int batch, double[][] xOut, boolean training) {
-        double[] xIn = NdArrays.toDouble(inputs[0], spareX);
-        double[] zIn = NdArrays.toDouble(inputs[1], spareZ);
+        double[] xIn = state.convert(X, inputs[0]);
+        double[] zIn = state.convert(Z, inputs[1]);
         double[] x = xIn;
-        double[] y;
         BoundCheck check = config.getSpec().check(training);
-        // backward follows forward on the same inputs: reuse that solution rather than solving again (compared
-        // by value, since a workspace may hand the same arrays back with new contents); an uncertified training
-        // solution never answers a pass that must be certified
-        if (lastY != null && lastOwner == c && (lastCheck == BoundCheck.EVERY_SAMPLE || check == BoundCheck.SKIP)
-                && java.util.Arrays.equals(lastX, xIn) && java.util.Arrays.equals(lastZ, zIn)) {
-            x = lastPhysicalX;
-            y = lastY;
-            if (xIn != lastX) {
-                spareX = xIn;
-            }
-            if (zIn != lastZ) {
-                spareZ = zIn;
-            }
+        // backward follows forward on the same inputs: reuse that solution (and its physical x) rather than
+        // solving again
+        double[] y = state.solution(c, check, xIn, zIn);
+        if (y != null) {
+            x = state.derived();
         } else {
             Scaling in = config.checkedInputScaling(c);
             Scaling out = config.checkedOutputScaling(c);
@@ -132,18 +109,9 @@ public class LawVertexImpl extends BaseGraphVertex {
                 x = in.toPhysical(xIn, batch);
                 z = NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
             }
-            y = NdArrays.reuse(spareY, batch * c.outputWidth());
+            y = state.solutionBuffer(batch * c.outputWidth());
             c.forward(x, z, batch, y, null, workspace(c), check);
-            // the buffers of the previous solution become the spares the next call converts and solves into
-            spareX = lastX;
-            spareZ = lastZ;
-            spareY = lastY;
-            lastCheck = check;
-            lastX = xIn;
-            lastZ = zIn;
-            lastPhysicalX = x;
-            lastY = y;
-            lastOwner = c;
+            state.remember(c, check, y, x, xIn, zIn);
         }
         if (xOut != null) {
             xOut[0] = x;
@@ -199,12 +167,9 @@ public class LawVertexImpl extends BaseGraphVertex {
                 "the vertex after it must take all " + c.outputWidth() + " outputs");
         double[][] x = new double[1][];
         double[] y = complete(c, batch, x, true);
-        double[] gy = NdArrays.toDouble(epsilon, spareGy);
-        spareGy = gy;
-        double[] gz = NdArrays.reuse(spareGz, batch * c.freeWidth());
-        spareGz = gz;
-        double[] gx = NdArrays.reuse(spareGx, batch * c.inputWidth());
-        spareGx = gx;
+        double[] gy = state.gradient(GY, epsilon);
+        double[] gz = state.gradient(GZ, batch * c.freeWidth());
+        double[] gx = state.gradient(GX, batch * c.inputWidth());
         Scaling in = config.checkedInputScaling(c);
         Scaling scaling = config.checkedOutputScaling(c);
         if (scaling != null) {
