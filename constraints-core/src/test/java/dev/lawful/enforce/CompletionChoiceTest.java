@@ -8,6 +8,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.lawful.algebra.LawException;
 import dev.lawful.algebra.LawSet;
+import dev.lawful.enforce.plan.ReferencePoint;
 import java.util.List;
 import java.util.Locale;
 import org.junit.jupiter.api.Test;
@@ -40,8 +41,14 @@ class CompletionChoiceTest {
         Completion c = Completion.of(laws);
         assertArrayEquals(new int[] {0, 2}, c.completedOutputs());
         assertEquals(List.of("completed outputs chosen automatically: y[0], y[2]"), c.warnings());
+        // the condition number is that of the equilibrated block: rows over each law's natural scale (the sum of
+        // the magnitudes of its terms), columns times the outputs' magnitudes, at the generic reference point
+        double[] x = ReferencePoint.generic(laws).x();
+        double[] y = ReferencePoint.generic(laws).y();
+        double sa = y[0] + y[1] + y[2] + x[0];
+        double sb = 2 * y[0] + 2 * y[1] + y[3] + x[1];
         // Source: Apache Commons Math 3.6.1 SingularValueDecomposition
-        double reference = condition(new double[][] {{1, 1}, {2, 0}});
+        double reference = condition(new double[][] {{y[0] / sa, y[2] / sa}, {2 * y[0] / sb, 0}});
         assertEquals(reference, c.condition(), 1e-12 * reference);
         assertTrue(c.condition() < 10, "well conditioned");
         // the same choice through the builder, and a restricted one
@@ -49,7 +56,8 @@ class CompletionChoiceTest {
         Completion restricted = Completion.builder(laws).allow("y[2]", "y[3]").build();
         assertArrayEquals(new int[] {2, 3}, restricted.completedOutputs());
         // Source: Apache Commons Math 3.6.1 SingularValueDecomposition
-        assertEquals(condition(new double[][] {{1, 0}, {0, 1}}), restricted.condition(), 1e-12);
+        double restrictedReference = condition(new double[][] {{y[2] / sa, 0}, {0, y[3] / sb}});
+        assertEquals(restrictedReference, restricted.condition(), 1e-12 * restrictedReference);
     }
 
     @Test
@@ -64,8 +72,10 @@ class CompletionChoiceTest {
                 ""));
         Completion c = Completion.builder(laws).referencePoint(new double[] {2, 1, 3}, new double[] {1, 1, 1}).build();
         assertEquals(Tier.AFFINE, c.tier());
+        // equilibrated at y = (1, 1, 1): rows over the laws' natural scales |x0 y0| + |y1| + |x1| = 4 and
+        // |y0| + |x2 y1| + |y2| = 5, columns times |y0| = |y1| = 1
         // Source: Apache Commons Math 3.6.1 SingularValueDecomposition
-        double reference = condition(new double[][] {{2, 1}, {1, -3}});
+        double reference = condition(new double[][] {{2 / 4.0, 1 / 4.0}, {1 / 5.0, -3 / 5.0}});
         assertEquals(reference, c.condition(), 1e-12 * reference);
         // nonlinear: ∂(y0² + y0·y1)/∂(y0, y1) = (2 y0 + y1, y0), ∂(y1³ − y0)/∂(y0, y1) = (−1, 3 y1²) at y = (1.5, 0.5)
         LawSet nonlinear = LawSet.parse("<nonlinear>", String.join("\n",
@@ -76,8 +86,9 @@ class CompletionChoiceTest {
                 ""));
         Completion n = Completion.builder(nonlinear).referencePoint(new double[] {1, 1}, new double[] {1.5, 0.5})
                 .build();
+        // equilibrated: natural scales y0² + y0 y1 + x0 = 4 and y1³ + y0 + x1 = 2.625, columns times 1.5 and 0.5
         // Source: Apache Commons Math 3.6.1 SingularValueDecomposition
-        double nref = condition(new double[][] {{3.5, 1.5}, {-1, 0.75}});
+        double nref = condition(new double[][] {{3.5 * 1.5 / 4, 1.5 * 0.5 / 4}, {-1 * 1.5 / 2.625, 0.75 * 0.5 / 2.625}});
         assertEquals(nref, n.condition(), 1e-12 * nref);
     }
 
@@ -108,10 +119,10 @@ class CompletionChoiceTest {
                 "law b: y[2] = x[1]",
                 "law c: 2*y[0] + 2*y[1] = 2*x[0]",
                 ""));
-        assertEquals("redundant.law:3:5: laws 'c', 'a' are not independent in the outputs (at the reference point,"
-                        + " law 'a' is a combination of the others): they are redundant or contradictory; remove or"
-                        + " correct one of them\n"
-                        + "law a: y[0] + y[1] = x[0]\n"
+        // c − 2·a cancels outputs, inputs and constants alike: c says nothing new
+        assertEquals("redundant.law:5:5: law 'c' is redundant: it is 2*a (outputs, inputs and constants alike, at"
+                        + " every point tried), so it says nothing new; remove it\n"
+                        + "law c: 2*y[0] + 2*y[1] = 2*x[0]\n"
                         + "    ^",
                 message(() -> Completion.of(laws)));
     }
@@ -124,9 +135,13 @@ class CompletionChoiceTest {
                 "law a: y[0] + y[1] = x[0]",
                 "law b: y[0] + y[1] = x[1]",
                 ""));
-        assertEquals("contradictory.law:4:5: laws 'a', 'b' are not independent in the outputs (at the reference"
-                        + " point, law 'b' is a combination of the others): they are redundant or contradictory; remove"
-                        + " or correct one of them\n"
+        // b − a leaves x0 − x1 over: no outputs satisfy both unless the inputs are equal
+        double[] x = ReferencePoint.generic(laws).x();
+        assertEquals("0.0869423", new java.math.BigDecimal(Math.abs(x[0] - x[1]))
+                .round(new java.math.MathContext(6)).toPlainString());
+        assertEquals("contradictory.law:4:5: laws 'a' and 'b' contradict each other: law 'a' has the same output"
+                        + " terms as law 'b' but differs from it by 0.0869423 at the reference point, so no outputs"
+                        + " satisfy them all; one of these laws is wrong: correct it\n"
                         + "law b: y[0] + y[1] = x[1]\n"
                         + "    ^",
                 message(() -> Completion.of(laws)));
@@ -244,11 +259,17 @@ class CompletionChoiceTest {
 
     @Test
     void aLargeConditionNumberGivesAWarning() {
-        Completion c = Completion.of(LawSet.parse("ill.law", ILL));
-        // Source: Apache Commons Math 3.6.1 SingularValueDecomposition
-        double reference = condition(new double[][] {{1, 1}, {1, 1.000000001}});
+        LawSet ill = LawSet.parse("ill.law", ILL);
+        Completion c = Completion.of(ill);
+        double[] x = ReferencePoint.generic(ill).x();
+        double[] y = ReferencePoint.generic(ill).y();
+        double sa = y[0] + y[1] + y[2] + x[0];
+        double sb = y[0] + 1.000000001 * y[1] + 2 * y[2] + x[1];
+        // Source: Apache Commons Math 3.6.1 SingularValueDecomposition (of the equilibrated block)
+        double reference = condition(new double[][] {{y[0] / sa, y[1] / sa}, {y[0] / sb, 1.000000001 * y[1] / sb}});
         assertEquals(reference, c.condition(), 1e-6 * reference);
-        assertEquals(List.of("the completed outputs are ill-conditioned (condition number 4.00e+09 > 1e+08): errors of"
+        assertEquals(String.format(Locale.ROOT, "%.3g", reference), "5.17e+09");
+        assertEquals(List.of("the completed outputs are ill-conditioned (condition number 5.17e+09 > 1e+08): errors of"
                 + " the free outputs are amplified; consider the automatic choice"), c.warnings());
         // the automatic choice is well conditioned and gives no such warning
         Completion auto = Completion.builder(LawSet.parse("ill.law", ILL)).automatic().build();
@@ -262,7 +283,7 @@ class CompletionChoiceTest {
         try {
             Locale.setDefault(Locale.GERMANY);
             Completion c = Completion.of(LawSet.parse("ill.law", ILL));
-            assertEquals(List.of("the completed outputs are ill-conditioned (condition number 4.00e+09 > 1e+08): errors"
+            assertEquals(List.of("the completed outputs are ill-conditioned (condition number 5.17e+09 > 1e+08): errors"
                     + " of the free outputs are amplified; consider the automatic choice"), c.warnings());
         } finally {
             Locale.setDefault(saved);

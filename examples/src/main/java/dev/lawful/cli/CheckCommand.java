@@ -40,7 +40,9 @@ import picocli.CommandLine.Spec;
         description = {
             "Reads a law file, checks it, and summarises its inputs, outputs, constants, definitions, laws (with "
                     + "their units and the output elements each involves), the completed and free outputs, how the "
-                    + "laws are solved (the tier) and the condition number of the completed outputs.",
+                    + "laws are solved (the tier) and the condition number of the completed outputs (equilibrated: each law "
+                    + "divided by the magnitude of its terms, each output scaled by its size, so the number does not "
+                    + "depend on the units declared).",
             "Errors are printed to standard error as file:line:column: message, with the source line and a caret."},
         exitCodeListHeading = "%nExit status:%n",
         exitCodeList = {

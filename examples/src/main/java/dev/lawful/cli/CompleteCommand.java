@@ -161,7 +161,7 @@ public final class CompleteCommand implements Callable<Integer> {
         write(laws, x, y, rows, status);
         out.println(file + ": completed " + String.join(", ", completion.completedNames()) + " ("
                 + completion.tier().label() + ", condition number " + LawSummary.threeDigits(completion.condition())
-                + ") from " + (completion.freeNames().isEmpty() ? "no free outputs"
+                + " equilibrated) from " + (completion.freeNames().isEmpty() ? "no free outputs"
                 : String.join(", ", completion.freeNames())));
         out.println("wrote " + outFile + ": " + rows + (rows == 1 ? " row" : " rows") + " of " + in
                 + (status == null ? "" : ", with a status column"));

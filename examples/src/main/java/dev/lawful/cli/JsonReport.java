@@ -12,7 +12,7 @@ import java.util.List;
  * <p>A valid file gives {@code file}, {@code valid: true}, {@code inputs}, {@code outputs}, {@code constants} (each
  * a list of {@code {name, length, unit}}), {@code definitions} ({@code {name, length, expression}}), {@code laws}
  * ({@code {name, unit, length, outputs}}), {@code tier} (how the laws are solved: {@code constant-affine},
- * {@code affine} or {@code nonlinear}), {@code condition} (the 2-norm condition number of dC/dy_completed at the
+ * {@code affine} or {@code nonlinear}), {@code condition} (the 2-norm condition number of the equilibrated dC/dy_completed at the
  * completion's reference point), {@code completed} (the completed output elements, from the {@code complete}
  * statement or else the automatic choice, in solve order), {@code free} (the other output elements) and
  * {@code warnings}; a file without laws has {@code tier} and {@code condition} null, {@code completed} empty and

@@ -33,7 +33,7 @@ import java.util.TreeSet;
  * @param hasCompletion whether the file has a {@code complete} statement (without one, the completed outputs are
  *                    the automatic choice)
  * @param tier        how the laws are solved ({@link Tier#label()}), or null when the file has no laws
- * @param condition   the 2-norm condition number of dC/dy_completed at the completion's reference point, or NaN
+ * @param condition   the 2-norm condition number of the equilibrated dC/dy_completed at the completion's reference point, or NaN
  *                    when the file has no laws
  * @param completionWarnings the completion's notes (the automatic choice, ill-conditioning, missing guesses)
  * @param warnings    the checker's warnings

@@ -19,7 +19,7 @@ import java.util.List;
  *
  * completed     T[0], T[1], T[2]  (3 of 5 output elements)
  * free          a, b
- * tier          constant-affine, condition number 1.73
+ * tier          constant-affine, condition number 1.73 (equilibrated)
  * </pre>
  *
  * Lengths are right-aligned; a scalar has length 1; a pure number's unit shows as {@code 1}. A list of output
@@ -121,7 +121,7 @@ final class TextReport {
             wrap(out, free, s.free(), "");
         }
         out.println(pad("tier", nameWidth) + GAP + s.tier() + ", condition number "
-                + LawSummary.threeDigits(s.condition()));
+                + LawSummary.threeDigits(s.condition()) + " (equilibrated)");
     }
 
     private void items(PrintWriter out, String title, List<LawSummary.Item> items) {

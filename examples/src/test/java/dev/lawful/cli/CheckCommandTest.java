@@ -74,9 +74,11 @@ class CheckCommandTest {
         // completed in the order of the complete statement, the rest free in output order
         assertTrue(lines.contains("completed    out[2], out[4], out[1], out[5]  (4 of 6 output elements)"), r.out());
         assertTrue(lines.contains("free         out[0], out[3]"), r.out());
-        // atom counts are constants, so every coefficient is constant; 6.35 is the condition number below to three
-        // digits
-        assertEquals("tier         constant-affine, condition number 6.35", lines.get(lines.size() - 1), r.out());
+        // atom counts are constants, so every coefficient is constant; 8.09 is the equilibrated condition number
+        // below to three digits
+        assertEquals("8.09", String.format(java.util.Locale.ROOT, "%.2f", reformerCondition(LawSet.read(file))));
+        assertEquals("tier         constant-affine, condition number 8.09 (equilibrated)", lines.get(lines.size() - 1),
+                r.out());
     }
 
     /**
@@ -87,29 +89,29 @@ class CheckCommandTest {
      * of principal minors 8 + 9 + 4, determinant det(B)² = 4). Its roots bracket 4, so the condition number is
      * sqrt(λmax / λmin). Source: hand derivation from the law file's constants (linear algebra, common practice).
      */
-    private static double reformerCondition() {
-        double max = root(4, 11);
-        double min = root(0, 1);
-        assertTrue(min < 4 && max > 4);
-        return Math.sqrt(max / min);
-    }
-
-    /** @return the root of λ³ − 11λ² + 21λ − 4 in [lo, hi] by bisection (the polynomial changes sign there) */
-    private static double root(double lo, double hi) {
-        java.util.function.DoubleUnaryOperator p = l -> ((l - 11) * l + 21) * l - 4;
-        double flo = p.applyAsDouble(lo);
-        for (int i = 0; i < 200 && hi - lo > 0; i++) {
-            double mid = 0.5 * (lo + hi);
-            if (mid == lo || mid == hi) {
-                break;
+    /**
+     * The condition number of the reformer's completed block, equilibrated at the generic reference point: row e is
+     * element e's atom counts over the law's natural scale (the sum of the magnitudes of its terms, outlet and
+     * inlet), column c is multiplied by the magnitude of out[c].
+     */
+    private static double reformerCondition(LawSet set) {
+        double[][] atoms = {{1, 0, 1, 1, 0, 0}, {4, 2, 0, 0, 2, 0}, {0, 1, 1, 2, 0, 0}, {0, 0, 0, 0, 0, 2}};
+        int[] completed = {2, 4, 1, 5};
+        double[] x = dev.lawful.enforce.plan.ReferencePoint.generic(set).x();
+        double[] y = dev.lawful.enforce.plan.ReferencePoint.generic(set).y();
+        double[][] block = new double[4][4];
+        for (int e = 0; e < 4; e++) {
+            double scale = 0;
+            for (int j = 0; j < 6; j++) {
+                scale += Math.abs(atoms[e][j] * y[j]) + Math.abs(atoms[e][j] * x[j]);
             }
-            if ((p.applyAsDouble(mid) < 0) == (flo < 0)) {
-                lo = mid;
-            } else {
-                hi = mid;
+            for (int k = 0; k < 4; k++) {
+                block[e][k] = atoms[e][completed[k]] * Math.abs(y[completed[k]]) / scale;
             }
         }
-        return 0.5 * (lo + hi);
+        // Source: Apache Commons Math 3.6.1 SingularValueDecomposition (2-norm condition number)
+        return new org.apache.commons.math3.linear.SingularValueDecomposition(
+                new org.apache.commons.math3.linear.Array2DRowRealMatrix(block)).getConditionNumber();
     }
 
     @Test
@@ -155,7 +157,7 @@ class CheckCommandTest {
         assertEquals(List.of("out[2]", "out[4]", "out[1]", "out[5]"), doc.get("completed"));
         assertEquals(List.of("out[0]", "out[3]"), doc.get("free"));
         assertEquals("constant-affine", doc.get("tier"));
-        double condition = reformerCondition();
+        double condition = reformerCondition(set);
         assertEquals(condition, (Double) doc.get("condition"), 1e-12 * condition);
         assertEquals(List.of(), doc.get("warnings"));
     }

@@ -32,7 +32,19 @@ public final class ReferencePoint {
      * @return the generic point of {@code laws}
      */
     public static ReferencePoint generic(LawSet laws) {
-        return new ReferencePoint(generic(laws.inputs(), INPUT_SEED), generic(laws.outputs(), OUTPUT_SEED));
+        return generic(laws, 0);
+    }
+
+    /**
+     * @param laws    the law set
+     * @param variant 0 for the default point; other values give other generic points drawn the same way (used to
+     *                tell a law that follows from others everywhere from one that does so at one point only)
+     * @return a generic point of {@code laws}
+     */
+    public static ReferencePoint generic(LawSet laws, int variant) {
+        long shift = 0x9E3779B97F4A7C15L * variant;
+        return new ReferencePoint(generic(laws.inputs(), INPUT_SEED + shift),
+                generic(laws.outputs(), OUTPUT_SEED + shift));
     }
 
     /**
@@ -81,7 +93,7 @@ public final class ReferencePoint {
         int at = 0;
         for (Declaration.Variable v : variables) {
             for (int i = 0; i < v.size(); i++) {
-                values[at++] = 0.5 + random.nextDouble();
+                values[at++] = (0.5 + random.nextDouble()) / v.unit().factor();
             }
         }
         return values;
