@@ -9,6 +9,7 @@ import java.util.Objects;
 import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawSet;
+import dev.lawful.enforce.plan.ReferencePoint;
 
 /**
  * Enforces a law set that is affine in the outputs by projecting each sample's outputs onto the laws: the nearest
@@ -53,9 +54,10 @@ import dev.lawful.algebra.LawSet;
  * <p><b>Refusals at build time</b> ({@link dev.lawful.algebra.LawException} pointing at the law, through
  * {@link LawSet#problem}): a law whose derivative with respect to an output depends on an output (nonlinear in
  * the outputs), naming the law and the output; and laws whose output coefficients are linearly dependent at the
- * <em>reference point</em>, every input and output equal to 1 in its declared unit, naming the dependent laws
- * (redundant or contradictory), tested in the projection's metric with the tolerance {@link #RANK_TOLERANCE}.
- * A law set whose coefficients happen to be dependent at that point (such as {@code (x - 1) * y = 0}) is refused
+ * <em>reference point</em> (the same generic point as {@link Completion}'s, {@link ReferencePoint#generic}, or the
+ * one given to {@link Builder#referencePoint}), tested in the projection's metric with the tolerance
+ * {@link #RANK_TOLERANCE}, naming the laws and saying whether one is redundant or the set contradictory. A law set
+ * whose coefficients happen to be dependent at that point (such as {@code (x - 1) * y = 0} at x = 1) is refused
  * even if they are independent elsewhere.
  *
  * <p><b>Bad samples</b> follow the {@link OnBadSample} policy: a non-finite input, output, coefficient or residual
@@ -140,6 +142,8 @@ public final class Projection {
         private final LawSet laws;
         private double[] weights;
         private OnBadSample policy = OnBadSample.THROW;
+        private double[] xRef;
+        private double[] yRef;
 
         private Builder(LawSet laws) {
             this.laws = Objects.requireNonNull(laws, "laws");
@@ -185,6 +189,20 @@ public final class Projection {
          */
         public Builder onBadSample(OnBadSample policy) {
             this.policy = Objects.requireNonNull(policy, "policy");
+            return this;
+        }
+
+        /**
+         * The point (inputs, outputs in declared units) where the laws are checked for independence. Default:
+         * {@link ReferencePoint#generic(LawSet)}, the point {@link Completion} uses.
+         *
+         * @param x inputs, {@code inputWidth} values (copied)
+         * @param y outputs, {@code outputWidth} values (copied)
+         * @return this builder
+         */
+        public Builder referencePoint(double[] x, double[] y) {
+            this.xRef = x.clone();
+            this.yRef = y.clone();
             return this;
         }
 
@@ -242,7 +260,8 @@ public final class Projection {
         ExpandedLaws e = laws.expand();
         ProjectionChecks.requireAffine(laws);
         this.inputGradientRefusal = ProjectionChecks.inputGradientRefusal(e);
-        this.kernel = new ProjectionKernel(e, laws.evaluator(), weights, policy, inputGradientRefusal == null);
+        ReferencePoint point = b.xRef == null ? ReferencePoint.generic(laws) : ReferencePoint.of(laws, b.xRef, b.yRef);
+        this.kernel = new ProjectionKernel(e, laws.evaluator(), weights, policy, inputGradientRefusal == null, point);
     }
 
     // ---- description -----------------------------------------------------------------------------------------

@@ -9,13 +9,14 @@ import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.algebra.Term;
+import dev.lawful.enforce.plan.Dependence;
+import dev.lawful.enforce.plan.ReferencePoint;
 
 /** The build-time refusals of {@link Projection}: laws nonlinear in the outputs, dependent laws. */
 final class ProjectionChecks {
     /** Coefficient (of unit law rows) above which an earlier law counts as part of a dependence. */
     static final double PART_OF_DEPENDENCE = 1e-8;
-    private static final String REFERENCE = "the reference point (every input and output equal to 1 in its "
-            + "declared unit)";
+    private static final String REFERENCE = "the reference point";
 
     private ProjectionChecks() {
     }
@@ -71,26 +72,23 @@ final class ProjectionChecks {
     }
 
     /**
-     * Factors the output coefficients at the reference point (x = 1, y = 1 in declared units) in the projection's
-     * metric.
+     * Factors the output coefficients at the reference point in the projection's metric.
      *
      * @return the factorisation at the reference point (the factorisation of every sample when the coefficients are
      *         constants)
      * @throws dev.lawful.algebra.LawException naming the laws when a law's coefficients are not finite there or
      *         are a linear combination of those of the laws before it
      */
-    static ProjectionFactor requireIndependent(LawSet laws, LawEvaluator evaluator, int[] start, int[] columns,
-                                               double[] invSqrtW, double tolerance) {
+    static ProjectionFactor requireIndependent(LawSet laws, LawEvaluator evaluator, ReferencePoint point,
+                                               int[] start, int[] columns, double[] invSqrtW, double tolerance) {
         ExpandedLaws e = laws.expand();
         int n = evaluator.lawCount();
         ProjectionFactor f = new ProjectionFactor(n, e.outputWidth());
         if (n == 0) {
             return f;
         }
-        double[] x = new double[e.inputWidth()];
-        double[] y = new double[e.outputWidth()];
-        Arrays.fill(x, 1.0);
-        Arrays.fill(y, 1.0);
+        double[] x = point.x();
+        double[] y = point.y();
         double[] jy = new double[evaluator.outputNonzeros()];
         evaluator.evaluate(x, y, 1, null, null, jy, null);
         int bad = f.load(jy, 0, start, columns, invSqrtW);
@@ -110,15 +108,12 @@ final class ProjectionChecks {
                     + " it; remove the law or rewrite it");
         }
         int[] parts = f.dependence(k, PART_OF_DEPENDENCE);
-        List<String> others = new ArrayList<>();
+        List<Integer> others = new ArrayList<>();
         for (int i : parts.length > 0 ? parts : java.util.stream.IntStream.range(0, k).toArray()) {
-            others.add(e.name(i));
+            others.add(i);
         }
-        List<String> all = new ArrayList<>(others);
-        all.add(name);
-        throw laws.problem(laws.law(e.law(k).name()), "laws " + quoted(all) + " are redundant or contradictory: at "
-                + REFERENCE + " the output coefficients of law '" + name + "' are a linear combination of those of "
-                + quoted(others) + "; remove one of these laws or make them independent");
+        // the same diagnosis as completion: redundant (say so and remove it) or contradictory (show what is left)
+        throw Dependence.diagnose(laws, point, k, others);
     }
 
     /** @return {@code 'a'}, {@code 'a' and 'b'}, {@code 'a', 'b' and 'c'} */

@@ -4,6 +4,7 @@ import java.util.Arrays;
 
 import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.LawEvaluator;
+import dev.lawful.enforce.plan.ReferencePoint;
 
 /**
  * The per-chunk kernels of {@link Projection} in double: forward with refinement and verification, the
@@ -39,7 +40,8 @@ final class ProjectionKernel {
      * @param constant whether every output coefficient is a constant: then A is factored once, here
      * @throws dev.lawful.algebra.LawException when the laws are dependent at the reference point
      */
-    ProjectionKernel(ExpandedLaws e, LawEvaluator evaluator, double[] weights, OnBadSample policy, boolean constant) {
+    ProjectionKernel(ExpandedLaws e, LawEvaluator evaluator, double[] weights, OnBadSample policy, boolean constant,
+            ReferencePoint point) {
         this.evaluator = evaluator;
         this.policy = policy;
         this.nIn = e.inputWidth();
@@ -71,7 +73,7 @@ final class ProjectionKernel {
             roundingUnits[i] = depth + 1;
         }
         this.failures = new ProjectionFailures(e);
-        ProjectionFactor reference = ProjectionChecks.requireIndependent(e.lawSet(), evaluator, yStart, yColumns,
+        ProjectionFactor reference = ProjectionChecks.requireIndependent(e.lawSet(), evaluator, point, yStart, yColumns,
                 invSqrtW, Projection.RANK_TOLERANCE);
         this.shared = constant ? reference : null;
     }

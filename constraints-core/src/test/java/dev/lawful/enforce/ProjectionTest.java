@@ -619,23 +619,32 @@ class ProjectionTest {
                 "law c: out[0] + 2 * out[1] + out[2] = feed[0] + feed[1]",
                 "");
         LawException e = assertThrows(LawException.class, () -> Projection.of(LawSet.parse("split.law", text)));
+        // c = a + b, outputs, inputs and constants alike: the same diagnosis as completion's
         assertEquals(String.join("\n",
-                "split.law:5:5: laws 'a', 'b' and 'c' are redundant or contradictory: at the reference point (every"
-                        + " input and output equal to 1 in its declared unit) the output coefficients of law 'c' are"
-                        + " a linear combination of those of 'a' and 'b'; remove one of these laws or make them"
-                        + " independent",
+                "split.law:5:5: law 'c' is redundant: it is a + b (outputs, inputs and constants alike, at every"
+                        + " point tried), so it says nothing new; remove it",
                 "law c: out[0] + 2 * out[1] + out[2] = feed[0] + feed[1]",
                 "    ^"), e.getMessage());
     }
 
     @Test
+    void theDefaultReferencePointIsGenericSoASpecialInputValueIsNotMetByAccident() {
+        // (x − 1)·y0 vanishes at x = 1 only: at the generic point shared with completion the laws are independent
+        String text = "input x\noutput y[2]\nlaw z: (x - 1) * y[0] = 0\nlaw other: y[0] + y[1] = x\n";
+        LawSet laws = LawSet.parse("vanish.law", text);
+        assertEquals(2, Projection.of(laws).laws().expand().size());
+        assertEquals(2, Completion.builder(laws).complete("y[0]", "y[1]").build().completedOutputs().length);
+    }
+
+    @Test
     void aLawWhoseCoefficientsVanishAtTheReferencePointIsRefused() {
         String text = "input x\noutput y[2]\nlaw z: (x - 1) * y[0] = 0\nlaw other: y[0] + y[1] = x\n";
-        LawException e = assertThrows(LawException.class, () -> Projection.of(LawSet.parse("vanish.law", text)));
+        // a reference point with x = 1, where the coefficient x − 1 vanishes
+        LawException e = assertThrows(LawException.class, () -> Projection.builder(LawSet.parse("vanish.law", text))
+                .referencePoint(new double[] {1}, new double[] {1, 1}).build());
         assertEquals(String.join("\n",
                 "vanish.law:3:5: law 'z' is redundant or contradictory: its output coefficients are all zero at the"
-                        + " reference point (every input and output equal to 1 in its declared unit), so moving the"
-                        + " outputs cannot enforce it; remove the law or rewrite it",
+                        + " reference point, so moving the outputs cannot enforce it; remove the law or rewrite it",
                 "law z: (x - 1) * y[0] = 0",
                 "    ^"), e.getMessage());
     }
@@ -643,11 +652,12 @@ class ProjectionTest {
     @Test
     void coefficientsUndefinedAtTheReferencePointAreRefused() {
         String text = "input x\noutput y[2]\nlaw q: y[0] / (x - 1) + y[1] = 0\n";
-        LawException e = assertThrows(LawException.class, () -> Projection.of(LawSet.parse("pole.law", text)));
+        // a reference point with x = 1, the coefficient's pole
+        LawException e = assertThrows(LawException.class, () -> Projection.builder(LawSet.parse("pole.law", text))
+                .referencePoint(new double[] {1}, new double[] {1, 1}).build());
         assertEquals(String.join("\n",
-                "pole.law:3:5: the output coefficients of law 'q' are not finite at the reference point (every input"
-                        + " and output equal to 1 in its declared unit), so the laws cannot be checked for"
-                        + " independence; rewrite the law so its coefficients are defined there",
+                "pole.law:3:5: the output coefficients of law 'q' are not finite at the reference point, so the laws"
+                        + " cannot be checked for independence; rewrite the law so its coefficients are defined there",
                 "law q: y[0] / (x - 1) + y[1] = 0",
                 "    ^"), e.getMessage());
     }

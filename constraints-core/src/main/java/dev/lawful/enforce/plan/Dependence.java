@@ -20,7 +20,7 @@ import org.ejml.dense.row.CommonOps_DDRM;
  * of them is wrong). The test is made at the reference point and at three more generic points, so a combination
  * whose coefficients depend on the inputs is judged by its values, not by its form.
  */
-final class Dependence {
+public final class Dependence {
     /** Relative size below which a coefficient of the combination counts as absent. */
     private static final double ABSENT = 1e-9;
     /** Relative misfit of the output coefficients above which a point does not show the dependence. */
@@ -54,7 +54,7 @@ final class Dependence {
      * @param basis     independent laws
      * @return the refusal to throw: redundant or contradictory, naming the laws and showing the combination
      */
-    static LawException diagnose(LawSet laws, ReferencePoint reference, int dependent, List<Integer> basis) {
+    public static LawException diagnose(LawSet laws, ReferencePoint reference, int dependent, List<Integer> basis) {
         return new Dependence(laws).diagnose(reference, dependent, basis);
     }
 
@@ -73,19 +73,35 @@ final class Dependence {
         int last = involved.remove(involved.size() - 1);
         double[] first = combination(at, last, involved);
         boolean sameEverywhere = true;
+        boolean elsewhere = false;
         for (int v = 0; v < POINTS; v++) {
             Values here = v == 0 ? at : values(ReferencePoint.generic(laws, v));
             double[] a = v == 0 ? first : combination(here, last, involved);
             if (!fits(here, last, involved, a)) {
                 continue;
             }
+            elsewhere |= v > 0;
             sameEverywhere &= close(a, first);
             double leftover = leftover(here, last, involved, a);
             if (Math.abs(leftover) > LEFTOVER * magnitude(here, last, involved, a)) {
                 return contradictory(last, involved, a, leftover, v == 0);
             }
         }
+        if (!elsewhere) {
+            return onlyHere(last, involved, first);
+        }
         return redundant(last, involved, first, sameEverywhere);
+    }
+
+    /** The output coefficients are dependent at the reference point only: the point is special for these laws. */
+    private LawException onlyHere(int law, List<Integer> others, double[] alpha) {
+        List<String> all = names(others);
+        all.add(expanded.name(law));
+        return laws.problem(expanded.law(law), "laws " + quoted(all) + " are dependent at the reference point only"
+                + (others.isEmpty() ? " (no output moves law '" + expanded.name(law) + "' there)"
+                : " (law '" + expanded.name(law) + "' has the output terms of " + text(others, alpha) + " there)")
+                + " and independent at other points: give a reference point where they are independent, or rewrite"
+                + " the laws");
     }
 
     private LawException contradictory(int law, List<Integer> others, double[] alpha, double leftover,
