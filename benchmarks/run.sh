@@ -10,7 +10,7 @@ set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$here"
 mvn -B -q -DskipTests package -pl benchmarks -am
-# ND4J's OpenMP threads busy-wait on small machines; one thread keeps timings stable (GUIDE section 6).
+# ND4J's OpenMP threads busy-wait on small machines; one thread keeps timings stable (docs/platform-facts.md, Deeplearning4j).
 export OMP_NUM_THREADS=1
 jar=benchmarks/target/benchmarks.jar
 result=benchmarks/target/jmh-result.json

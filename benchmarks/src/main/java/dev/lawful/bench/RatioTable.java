@@ -31,7 +31,7 @@ import org.nd4j.shade.jackson.databind.ObjectMapper;
  * </pre>
  */
 public final class RatioTable {
-    /** Stream bandwidth of one core on the reference machine, bytes per nanosecond (GUIDE section 7). */
+    /** Stream bandwidth of one core on the reference machine, bytes per nanosecond (docs/platform-facts.md, Java kernels). */
     static final double BYTES_PER_NANOSECOND = 23.0;
 
     /** The {@code -prof gc} figure of bytes allocated per operation (older JMH versions prefix a middle dot). */

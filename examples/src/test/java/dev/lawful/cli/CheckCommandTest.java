@@ -164,7 +164,7 @@ class CheckCommandTest {
 
     @Test
     void tierFollowsHowTheCompletedOutputsEnterTheLaws() throws IOException {
-        // Source: the tier definitions of the project's guide: constant coefficients are constant-affine; the
+        // Source: the tier definitions in DEVELOPERS.md (Vocabulary) and docs/mathematics.md: constant coefficients are constant-affine; the
         // district heating mixing law multiplies two completed outputs (m_back * T_back), which is nonlinear
         Map<String, Object> water = object(Json.parse(run("check", "--json",
                 example("water-network.law").toString()).out()));
