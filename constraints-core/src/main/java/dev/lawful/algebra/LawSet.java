@@ -28,6 +28,8 @@ public final class LawSet {
     private final List<Diagnostic> warnings;
     private final Map<String, Checker.LawInfo> lawInfo;
     private final Map<String, Unit> definitionUnits;
+    /** Each law's reporting unit, in the units the file declares where a side allows ({@link DeclaredLawUnit}). */
+    private final Map<String, Unit> lawUnits = new LinkedHashMap<>();
     private final List<Declaration.Variable> inputs = new ArrayList<>();
     private final List<Declaration.Variable> outputs = new ArrayList<>();
     private final Map<String, Integer> inputOffsets = new LinkedHashMap<>();
@@ -44,6 +46,12 @@ public final class LawSet {
         this.declarations = List.copyOf(declarations);
         this.lawInfo = Collections.unmodifiableMap(new LinkedHashMap<>(checker.laws));
         this.definitionUnits = Collections.unmodifiableMap(new LinkedHashMap<>(checker.definitionUnits));
+        DeclaredLawUnit declaredUnit = new DeclaredLawUnit(declarations);
+        for (Declaration d : declarations) {
+            if (d instanceof Declaration.Law law) {
+                lawUnits.put(law.name(), declaredUnit.of(law, lawInfo.get(law.name()).unit()));
+            }
+        }
         for (Declaration d : declarations) {
             if (d instanceof Declaration.Variable v) {
                 boolean in = v.role() == Declaration.Role.INPUT;
@@ -328,15 +336,19 @@ public final class LawSet {
     // ---- laws ------------------------------------------------------------------------------------------------
 
     /**
-     * @return the unit residuals of law {@code name} are reported in: the declared unit of its left side when that
-     *         follows from one declaration (or else its right side's), otherwise the coherent SI unit
+     * @return the unit residuals of law {@code name} are reported in (one unit for every element of a vector law):
+     *         the declared unit of its left side when that side is in one declared unit (or else its right side's);
+     *         otherwise, when a side is one product of declared quantities with no sum, the product of their units
+     *         ({@code ohm MW} for R in ohm times P in MW); otherwise the coherent SI unit of its dimension
+     *         ({@code W m-2}). Its factor is that of its text, so a residual in this unit is residual_SI / factor.
+     *         The order of preference is in the package-private DeclaredLawUnit.
      */
     public Unit lawUnit(String name) {
-        Checker.LawInfo info = lawInfo.get(name);
-        if (info == null) {
+        Unit unit = lawUnits.get(name);
+        if (unit == null) {
             throw new IllegalArgumentException("no law named '" + name + "'");
         }
-        return info.unit();
+        return unit;
     }
 
     /**

@@ -1,5 +1,8 @@
 package dev.lawful.algebra;
 
+import java.util.LinkedHashMap;
+import java.util.Map;
+
 /**
  * Parses unit text such as {@code mol/s}, {@code W m-2}, {@code J/(kg K)} or {@code kg m^2 s^-3}.
  *
@@ -21,6 +24,8 @@ final class UnitParser {
     private final int end;
     private int pos;
     private final int start;
+    /** The symbol exponents of the last successful {@link #parse()}. */
+    private Map<String, Integer> powers = Map.of();
 
     /**
      * @param diagnostics receives errors, with positions in the whole source
@@ -41,10 +46,9 @@ final class UnitParser {
         if (written.isEmpty()) {
             return Unit.NONE;
         }
-        double[] factor = {1.0};
-        Dimension[] dim = {Dimension.NONE};
+        Part whole = new Part();
         int errorsBefore = errorCount();
-        if (!product(factor, dim, 0)) {
+        if (!product(whole, 0)) {
             return Unit.NONE;
         }
         skipSpaces();
@@ -56,16 +60,59 @@ final class UnitParser {
         if (errorCount() != errorsBefore) {
             return Unit.NONE;
         }
-        if (dim[0].maxAbsExponent() > Limits.MAX_UNIT_EXPONENT) {
+        if (whole.dim.maxAbsExponent() > Limits.MAX_UNIT_EXPONENT) {
             error(new Span(start, end - start), "unit exponent too large in '" + written + "' (limit "
                     + Limits.MAX_UNIT_EXPONENT + ")");
             return Unit.NONE;
         }
-        if (!(factor[0] > 0) || Double.isInfinite(factor[0]) || factor[0] < Double.MIN_NORMAL) {
+        if (!(whole.factor > 0) || Double.isInfinite(whole.factor) || whole.factor < Double.MIN_NORMAL) {
             error(new Span(start, end - start), "unit '" + written + "' is out of the range of double");
             return Unit.NONE;
         }
-        return new Unit(written, factor[0], dim[0]);
+        powers = whole.powers;
+        return new Unit(written, whole.factor, whole.dim);
+    }
+
+    /**
+     * @return each symbol as written ({@code kJ}, {@code kg}, {@code K}) with its net exponent, in the order the
+     *         symbols first appear, after a successful {@link #parse()}; symbols whose exponents cancel are left out.
+     *         Lets a product of declared units be written out again with repeated symbols combined.
+     */
+    Map<String, Integer> powers() {
+        Map<String, Integer> out = new LinkedHashMap<>(powers);
+        out.values().removeIf(k -> k == 0);
+        return out;
+    }
+
+    /**
+     * @param text unit text, such as a declaration's {@link Unit#text()}
+     * @return its symbols with their net exponents (see {@link #powers()}), or null when the text does not parse
+     */
+    static Map<String, Integer> powersOf(String text) {
+        UnitParser parser = new UnitParser(new Diagnostics(new SourceText("unit", text)), 0, text.length());
+        parser.parse();
+        return parser.failed() ? null : parser.powers();
+    }
+
+    /** Factor, dimension and symbol exponents of a part of the unit text, combined as the grammar says. */
+    private static final class Part {
+        double factor = 1.0;
+        Dimension dim = Dimension.NONE;
+        final Map<String, Integer> powers = new LinkedHashMap<>();
+
+        /** Multiplies by {@code other} raised to {@code sign} (1, or -1 after a '/'). */
+        void times(Part other, int sign) {
+            factor = sign > 0 ? factor * other.factor : factor / other.factor;
+            dim = sign > 0 ? dim.times(other.dim) : dim.over(other.dim);
+            other.powers.forEach((symbol, k) -> powers.merge(symbol, sign * k, Integer::sum));
+        }
+
+        /** Raises this part to the power {@code k}. */
+        void pow(int k) {
+            factor = Math.pow(factor, k);
+            dim = dim.pow(k);
+            powers.replaceAll((symbol, e) -> e * k);
+        }
     }
 
     private int errors;
@@ -88,12 +135,12 @@ final class UnitParser {
         return s.trim().replaceAll("\\s+", " ");
     }
 
-    private boolean product(double[] factor, Dimension[] dim, int depth) {
+    private boolean product(Part whole, int depth) {
         if (depth > 16) {
             error(new Span(pos, 1), "unit nested too deeply (limit 16 parentheses)");
             return false;
         }
-        if (!factor(factor, dim, depth)) {
+        if (!factor(whole, depth)) {
             return false;
         }
         boolean divided = false;
@@ -120,37 +167,27 @@ final class UnitParser {
                 return false;
             }
             skipSpaces();
-            double[] f = {1.0};
-            Dimension[] d = {Dimension.NONE};
-            if (!factor(f, d, depth)) {
+            Part next = new Part();
+            if (!factor(next, depth)) {
                 return false;
             }
-            if (divide) {
-                factor[0] /= f[0];
-                dim[0] = dim[0].over(d[0]);
-                divided = true;
-            } else {
-                factor[0] *= f[0];
-                dim[0] = dim[0].times(d[0]);
-            }
+            whole.times(next, divide ? -1 : 1);
+            divided = divide;
         }
     }
 
-    private boolean factor(double[] factor, Dimension[] dim, int depth) {
+    /** Parses one factor into {@code part}, which is empty on entry. */
+    private boolean factor(Part part, int depth) {
         skipSpaces();
         if (pos >= end) {
             error(new Span(Math.min(pos, end), 0), "expected a unit symbol, found the end of the unit");
             return false;
         }
         char c = text.charAt(pos);
-        double f;
-        Dimension d;
         if (c == '(') {
             int open = pos;
             pos++;
-            double[] inner = {1.0};
-            Dimension[] innerDim = {Dimension.NONE};
-            if (!product(inner, innerDim, depth + 1)) {
+            if (!product(part, depth + 1)) {
                 return false;
             }
             skipSpaces();
@@ -159,12 +196,8 @@ final class UnitParser {
                 return false;
             }
             pos++;
-            f = inner[0];
-            d = innerDim[0];
         } else if (c == '1') {
             pos++;
-            f = 1.0;
-            d = Dimension.NONE;
         } else if (isSymbolChar(c)) {
             int s = pos;
             while (pos < end && isSymbolChar(text.charAt(pos))) {
@@ -176,8 +209,9 @@ final class UnitParser {
                 error(new Span(s, pos - s), unknownSymbol(symbol));
                 return false;
             }
-            f = e.factor();
-            d = e.dimension();
+            part.factor = e.factor();
+            part.dim = e.dimension();
+            part.powers.put(symbol, 1);
         } else {
             error(new Span(pos, 1), "expected a unit symbol, found '" + c + "'");
             return false;
@@ -186,8 +220,7 @@ final class UnitParser {
         if (k == Integer.MIN_VALUE) {
             return false;
         }
-        factor[0] = Math.pow(f, k);
-        dim[0] = d.pow(k);
+        part.pow(k);
         return true;
     }
 

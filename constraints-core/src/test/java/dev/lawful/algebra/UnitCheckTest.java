@@ -183,9 +183,12 @@ class UnitCheckTest {
         // when the left side follows from no single declaration, the right side's unit is used
         assertEquals(Unit.parse("kW"), parse("input a W", "input b J/s", "output P kW", "law p: a + b = P")
                 .lawUnit("p"));
-        // and when neither does, the coherent SI unit of the dimension
-        assertEquals(new Unit("W", 1.0, Unit.parse("W").dimension()),
+        // declared units that cancel leave one declared unit: P * P / P is in kW
+        assertEquals(Unit.parse("kW"),
                 parse("input U V", "input I A", "output P kW", "law a: U * I = 2 * P * P / P").lawUnit("a"));
+        // and when neither side is in one declared unit nor one product of them, the coherent SI unit
+        assertEquals(new Unit("W", 1.0, Unit.parse("W").dimension()),
+                parse("input a W", "input b J/s", "output P kW", "output L W", "law s: P + L = a + b").lawUnit("s"));
     }
 
     private static String[] concat(String[] head, String... tail) {

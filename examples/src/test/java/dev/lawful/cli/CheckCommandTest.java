@@ -297,6 +297,29 @@ class CheckCommandTest {
         assertEquals(e.getMessage() + "\n", r.err());
     }
 
+    /**
+     * A law is shown in the file's declared units where a side is one product of them: R * P with R in ohm and P in
+     * MW reads {@code ohm MW} (its SI form is kg2 m4 s-6 A-2). In plant.law: a side that is one declared quantity
+     * keeps its unit (kW, a vector law), a product combines repeated symbols (kJ/s), and sums on both sides keep
+     * the coherent SI unit (mol s-1).
+     */
+    @Test
+    void lawUnitsReadInTheDeclaredUnitsWordForWord() throws Exception {
+        for (String name : List.of("check/joule.law", "check/plant.law")) {
+            Path file = resource(name);
+            Captured r = run("check", file.toString());
+            assertEquals(0, r.code(), r.err());
+            assertEquals("", r.err());
+            assertEquals(expected(file), r.out(), name);
+            // the JSON form names the same unit the core reports residuals in
+            LawSet set = LawSet.read(file);
+            for (Object l : list(object(Json.parse(run("check", "--json", file.toString()).out())).get("laws"))) {
+                String law = (String) object(l).get("name");
+                assertEquals(set.lawUnit(law).text(), object(l).get("unit"), law);
+            }
+        }
+    }
+
     @Test
     void brokenFileJsonListsTheErrors() throws Exception {
         Path file = resource("check/broken.law");
