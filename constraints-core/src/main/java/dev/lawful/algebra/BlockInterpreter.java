@@ -56,6 +56,8 @@ final class BlockInterpreter {
                 case Program.IN -> gather(r, code, pc, x, s0, p.inputWidth(), m);
                 case Program.OUT -> gather(r, code, pc, y, s0, p.outputWidth(), m);
                 case Program.SUM -> {
+                    // compensated, one addend at a time across the block so the loops vectorise; per sample the
+                    // operations and their order are exactly those of Kernels.neumaier
                     // the addend loop stays here: one sum helper with every addend kind's loop compiled too big
                     // for the JIT to inline, and its call per sum cost the reformer residuals benchmark ~5%
                     double[] d = r[code[pc + 1]];
