@@ -11,13 +11,22 @@ import java.util.Set;
  * Checks parsed declarations: every name known and declared before use, no duplicates, vector lengths that agree,
  * indices in range, laws that mention an output, and units that agree in every sum and between the two sides of
  * every law. All findings go to the {@link Diagnostics}; checking goes on after an error wherever the rest can
- * still be judged (an erroneous sub-expression is skipped silently, so one mistake gives one message).
+ * still be judged (an erroneous sub-expression is skipped silently, so one mistake gives one message). Function
+ * calls are judged by a {@link CallChecker}, and the shape and unit rules operators share with calls live in
+ * {@link ExprRules}.
  */
 final class Checker {
 
     /** What a declared name stands for. */
     record Symbol(Declaration declaration, int line, int shape, Dimension dimension, Unit unit, boolean output,
                   boolean mentionsOutput, Double value) {
+        /** @return what the name is, for messages: "an input", "an output", "a constant" or "a definition" */
+        String kindText() {
+            if (declaration instanceof Declaration.Variable v) {
+                return v.role() == Declaration.Role.INPUT ? "an input" : "an output";
+            }
+            return declaration instanceof Declaration.Constant ? "a constant" : "a definition";
+        }
     }
 
     /**
@@ -38,6 +47,8 @@ final class Checker {
 
     private final Diagnostics diagnostics;
     private final Parser.Places places;
+    private final ExprRules rules;
+    private final CallChecker calls;
     private final Map<String, Symbol> symbols = new LinkedHashMap<>();
     private final Map<String, Integer> lawLines = new LinkedHashMap<>();
     private final Map<String, Integer> laterNames = new LinkedHashMap<>();
@@ -52,6 +63,8 @@ final class Checker {
     Checker(Diagnostics diagnostics, Parser.Places places) {
         this.diagnostics = diagnostics;
         this.places = places;
+        this.rules = new ExprRules(diagnostics);
+        this.calls = new CallChecker(diagnostics, symbols, rules);
     }
 
     void check(List<Declaration> declarations) {
@@ -129,7 +142,7 @@ final class Checker {
             diagnostics.error(nameSpan(d), "'" + name + "' is a keyword and cannot be declared");
             return;
         }
-        if (Function.named(name) != null || name.equals("sum") || name.equals("dot") || name.equals("pow")) {
+        if (CallChecker.isFunction(name)) {
             diagnostics.error(nameSpan(d), "'" + name + "' is a function name and cannot be declared");
             return;
         }
@@ -162,14 +175,14 @@ final class Checker {
             return;
         }
         String what = "between the sides of law '" + law.name() + "'";
-        int shape = broadcast(left, right, what, spanOf(law.rhs()));
+        int shape = rules.broadcast(left, right, what, spanOf(law.rhs()), context);
         if (shape < 0) {
             return;
         }
         Dimension dim = left.dimension() != null ? left.dimension() : right.dimension();
         if (left.dimension() != null && right.dimension() != null && !left.dimension().equals(right.dimension())) {
-            diagnostics.error(spanOf(law.rhs()), "unit mismatch " + what + ": left is " + describe(left)
-                    + ", right is " + describe(right));
+            diagnostics.error(spanOf(law.rhs()), "unit mismatch " + what + ": left is " + ExprRules.describe(left)
+                    + ", right is " + ExprRules.describe(right));
             return;
         }
         if (!left.mentionsOutput() && !right.mentionsOutput()) {
@@ -202,7 +215,7 @@ final class Checker {
                 continue;
             }
             if (!(s.declaration() instanceof Declaration.Variable v) || v.role() != Declaration.Role.OUTPUT) {
-                diagnostics.error(spanOf(t), "'" + name + "' is " + kindOf(s) + "; only outputs can be completed");
+                diagnostics.error(spanOf(t), "'" + name + "' is " + s.kindText() + "; only outputs can be completed");
                 continue;
             }
             if (elementRef(t, s) == null) {
@@ -231,7 +244,7 @@ final class Checker {
             return;
         }
         if (!(s.declaration() instanceof Declaration.Variable v) || v.role() != Declaration.Role.OUTPUT) {
-            diagnostics.error(spanOf(t), "'" + name + "' is " + kindOf(s) + "; guesses are for outputs");
+            diagnostics.error(spanOf(t), "'" + name + "' is " + s.kindText() + "; guesses are for outputs");
             return;
         }
         Info target = elementRef(t, s);
@@ -240,12 +253,12 @@ final class Checker {
         }
         if (value.shape() != 0 && value.shape() != target.shape()) {
             diagnostics.error(spanOf(g.value()), context + "vector length mismatch: the output is "
-                    + shapeText(target.shape()) + ", the guess is " + shapeText(value.shape()));
+                    + ExprRules.shapeText(target.shape()) + ", the guess is " + ExprRules.shapeText(value.shape()));
             return;
         }
         if (value.dimension() != null && target.dimension() != null && !value.dimension().equals(target.dimension())) {
-            diagnostics.error(spanOf(g.value()), context + "unit mismatch: the output is in " + describe(target)
-                    + ", the guess is in " + describe(value));
+            diagnostics.error(spanOf(g.value()), context + "unit mismatch: the output is in "
+                    + ExprRules.describe(target) + ", the guess is in " + ExprRules.describe(value));
             return;
         }
         int from = t instanceof Expr.Index i ? i.index() : t instanceof Expr.Slice sl ? sl.from() : 0;
@@ -257,17 +270,6 @@ final class Checker {
                 return;
             }
         }
-    }
-
-    private static String kindOf(Symbol s) {
-        Declaration d = s.declaration();
-        if (d instanceof Declaration.Variable v) {
-            return v.role() == Declaration.Role.INPUT ? "an input" : "an output";
-        }
-        if (d instanceof Declaration.Constant) {
-            return "a constant";
-        }
-        return "a definition";
     }
 
     private Symbol lookup(String name, Span at) {
@@ -359,7 +361,7 @@ final class Checker {
             return null;
         }
         String what = "in '" + b.op().symbol() + "'";
-        int shape = broadcast(l, r, what, spanOf(b));
+        int shape = rules.broadcast(l, r, what, spanOf(b), context);
         if (shape < 0) {
             return null;
         }
@@ -370,8 +372,8 @@ final class Checker {
             case ADD:
             case SUB: {
                 if (l.dimension() != null && r.dimension() != null && !l.dimension().equals(r.dimension())) {
-                    diagnostics.error(spanOf(b), context + "unit mismatch " + what + ": left is " + describe(l)
-                            + ", right is " + describe(r));
+                    diagnostics.error(spanOf(b), context + "unit mismatch " + what + ": left is "
+                            + ExprRules.describe(l) + ", right is " + ExprRules.describe(r));
                     return null;
                 }
                 Dimension d = l.dimension() != null ? l.dimension() : r.dimension();
@@ -403,123 +405,16 @@ final class Checker {
                 return new Info(shape, d, u, mentions, v);
             }
             default:
-                return power(b, l, r, shape, mentions);
+                return rules.power(spanOf(b), l, r, shape, mentions, context);
         }
-    }
-
-    private Info power(Expr b, Info base, Info exponent, int shape, boolean mentions) {
-        Dimension ed = exponent.dimension() == null ? Dimension.NONE : exponent.dimension();
-        if (!ed.isNone()) {
-            diagnostics.error(spanOf(b), context + "the exponent must be dimensionless, found " + describe(exponent));
-            return null;
-        }
-        Double v = base.value() != null && exponent.value() != null ? Math.pow(base.value(), exponent.value()) : null;
-        Dimension bd = base.dimension() == null ? Dimension.NONE : base.dimension();
-        if (bd.isNone()) {
-            return new Info(shape, Dimension.NONE, null, mentions, v);
-        }
-        if (exponent.value() == null || exponent.shape() != 0) {
-            diagnostics.error(spanOf(b), context + "a quantity in " + describe(base)
-                    + " can only be raised to a constant scalar exponent");
-            return null;
-        }
-        double k = exponent.value();
-        if (!Double.isFinite(k)) {
-            diagnostics.error(spanOf(b), context + "the exponent of a quantity in " + describe(base)
-                    + " evaluates to " + k + ", not a finite number");
-            return null;
-        }
-        int[] e = new int[7];
-        for (int i = 0; i < 7; i++) {
-            double x = bd.exponent(i) * k;
-            if (Math.abs(x - Math.rint(x)) > 1e-9 || Math.abs(x) > Limits.MAX_UNIT_EXPONENT) {
-                diagnostics.error(spanOf(b), context + "exponent " + ExprPrinter.number(k) + " does not give whole unit powers"
-                        + " of " + describe(base) + (Math.abs(x) > Limits.MAX_UNIT_EXPONENT ? " within the limit of "
-                        + Limits.MAX_UNIT_EXPONENT : ""));
-                return null;
-            }
-            e[i] = (int) Math.rint(x);
-        }
-        return new Info(shape, Dimension.of(e), null, mentions, v);
     }
 
     private Info call(Expr.Call c) {
-        String name = c.function();
-        Span at = spanOf(c);
         List<Info> args = new ArrayList<>();
-        boolean bad = false;
         for (Expr a : c.args()) {
-            Info i = expr(a);
-            bad |= i == null;
-            args.add(i);
+            args.add(expr(a));
         }
-        Function f = Function.named(name);
-        int arity = f != null ? 1 : name.equals("sum") ? 1 : name.equals("dot") || name.equals("pow") ? 2 : -1;
-        if (arity < 0) {
-            Symbol s = symbols.get(name);
-            if (s != null) {
-                diagnostics.error(at, "'" + name + "' is " + kindOf(s) + ", not a function; "
-                        + (s.shape() > 0 ? "write " + name + "[i] for an element" : "write '*' to multiply"));
-            } else {
-                List<String> all = new ArrayList<>(List.of("sum", "dot", "pow"));
-                for (Function fn : Function.values()) {
-                    all.add(fn.spelling());
-                }
-                String near = Names.nearest(name, all);
-                diagnostics.error(at, "unknown function '" + name + "'" + (near == null ? "" : "; did you mean '" + near
-                        + "'?"));
-            }
-            return null;
-        }
-        if (args.size() != arity) {
-            diagnostics.error(at, "'" + name + "' takes " + arity + " argument" + (arity == 1 ? "" : "s") + ", found "
-                    + args.size());
-            return null;
-        }
-        if (bad) {
-            return null;
-        }
-        Info a = args.get(0);
-        if (name.equals("sum")) {
-            return new Info(0, a.dimension(), a.unit(), a.mentionsOutput(), a.shape() == 0 ? a.value() : null);
-        }
-        if (name.equals("pow")) {
-            int shape = broadcast(a, args.get(1), "in 'pow'", at);
-            return shape < 0 ? null : power(c, a, args.get(1), shape, a.mentionsOutput() || args.get(1).mentionsOutput());
-        }
-        if (name.equals("dot")) {
-            Info b = args.get(1);
-            if (a.shape() == 0 || b.shape() == 0 || a.shape() != b.shape()) {
-                diagnostics.error(at, "'dot' needs two vectors of the same length, found " + shapeText(a.shape())
-                        + " and " + shapeText(b.shape()));
-                return null;
-            }
-            Dimension ad = a.dimension() == null ? Dimension.NONE : a.dimension();
-            Dimension bd = b.dimension() == null ? Dimension.NONE : b.dimension();
-            Unit u = bd.isNone() ? a.unit() : ad.isNone() ? b.unit() : null;
-            return new Info(0, ad.times(bd), u, a.mentionsOutput() || b.mentionsOutput(), null);
-        }
-        Dimension d = a.dimension() == null ? Dimension.NONE : a.dimension();
-        Double v = a.value() == null ? null : f.apply(a.value());
-        switch (f.kind()) {
-            case DIMENSIONLESS:
-                if (!d.isNone()) {
-                    diagnostics.error(at, context + "the argument of '" + name + "' must be dimensionless, found " + describe(a));
-                    return null;
-                }
-                return new Info(a.shape(), Dimension.NONE, null, a.mentionsOutput(), v);
-            case ROOT:
-                if (!d.hasSquareRoot()) {
-                    diagnostics.error(at, context + "the argument of '" + name + "' is in " + describe(a)
-                            + ", which has no square root in whole unit powers");
-                    return null;
-                }
-                return new Info(a.shape(), d.root2(), null, a.mentionsOutput(), v);
-            case SAME:
-                return new Info(a.shape(), a.dimension(), a.unit(), a.mentionsOutput(), v);
-            default:
-                return new Info(a.shape(), Dimension.NONE, null, a.mentionsOutput(), v);
-        }
+        return calls.check(c, spanOf(c), args, context);
     }
 
     private Info vector(Expr.Vector v) {
@@ -533,13 +428,13 @@ final class Checker {
             }
             if (i.shape() != 0) {
                 diagnostics.error(spanOf(e), "the elements of a vector literal must be scalars, found "
-                        + shapeText(i.shape()));
+                        + ExprRules.shapeText(i.shape()));
                 return null;
             }
             if (i.dimension() != null) {
                 if (d != null && !d.equals(i.dimension())) {
                     diagnostics.error(spanOf(e), context + "unit mismatch in a vector literal: earlier elements are in "
-                            + d + ", this one is in " + describe(i));
+                            + d + ", this one is in " + ExprRules.describe(i));
                     return null;
                 }
                 if (d == null) {
@@ -552,35 +447,5 @@ final class Checker {
             mentions |= i.mentionsOutput();
         }
         return new Info(v.elements().size(), d, u, mentions, null);
-    }
-
-    /** @return the shape of an element-wise combination, or -1 after reporting a mismatch */
-    private int broadcast(Info l, Info r, String what, Span at) {
-        if (l.shape() == 0) {
-            return r.shape();
-        }
-        if (r.shape() == 0 || r.shape() == l.shape()) {
-            return l.shape();
-        }
-        String prefix = what.startsWith("between") ? "" : context;
-        diagnostics.error(at, prefix + "vector length mismatch " + what + ": left is " + shapeText(l.shape())
-                + ", right is " + shapeText(r.shape()));
-        return -1;
-    }
-
-    static String shapeText(int shape) {
-        return shape == 0 ? "a scalar" : "a vector of length " + shape;
-    }
-
-    private static String describe(Info i) {
-        Dimension d = i.dimension() == null ? Dimension.NONE : i.dimension();
-        if (d.isNone()) {
-            return "dimensionless";
-        }
-        String si = Units.named(d).display();
-        if (i.unit() != null && !i.unit().text().isEmpty() && !i.unit().text().equals(si)) {
-            return i.unit().text() + " (" + si + ")";
-        }
-        return si;
     }
 }

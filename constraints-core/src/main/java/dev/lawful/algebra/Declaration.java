@@ -38,6 +38,7 @@ public sealed interface Declaration {
      * @param unit   unit of every element
      */
     record Variable(Role role, String name, boolean vector, int size, Unit unit) implements Declaration {
+        /** @throws NullPointerException when the role, name or unit is null */
         public Variable {
             Objects.requireNonNull(role, "role");
             Objects.requireNonNull(name, "name");
@@ -59,6 +60,11 @@ public sealed interface Declaration {
      * @param unit   the unit of every element
      */
     record Constant(String name, boolean vector, List<Double> values, Unit unit) implements Declaration {
+        /**
+         * Keeps an unmodifiable copy of the values.
+         *
+         * @throws NullPointerException when the name, unit, values or a value is null
+         */
         public Constant {
             Objects.requireNonNull(name, "name");
             Objects.requireNonNull(unit, "unit");
@@ -86,6 +92,7 @@ public sealed interface Declaration {
      * @param expr its value
      */
     record Definition(String name, Expr expr) implements Declaration {
+        /** @throws NullPointerException when the name or expression is null */
         public Definition {
             Objects.requireNonNull(name, "name");
             Objects.requireNonNull(expr, "expr");
@@ -105,6 +112,7 @@ public sealed interface Declaration {
      * @param rhs  right-hand side
      */
     record Law(String name, Expr lhs, Expr rhs) implements Declaration {
+        /** @throws NullPointerException when the name or a side is null */
         public Law {
             Objects.requireNonNull(name, "name");
             Objects.requireNonNull(lhs, "lhs");
@@ -124,6 +132,12 @@ public sealed interface Declaration {
      *                slice ({@link Expr.Slice})
      */
     record Completion(List<Expr> targets) implements Declaration {
+        /**
+         * Keeps an unmodifiable copy of the targets.
+         *
+         * @throws IllegalArgumentException when a target is not a name, an element or a slice
+         * @throws NullPointerException     when the list or a target is null
+         */
         public Completion {
             targets = List.copyOf(targets);
             for (Expr t : targets) {
@@ -149,6 +163,10 @@ public sealed interface Declaration {
      * @param value  its starting value, in the output's unit (scalar, or a vector of the target's length)
      */
     record Guess(Expr target, Expr value) implements Declaration {
+        /**
+         * @throws IllegalArgumentException when the target is not a name, an element or a slice
+         * @throws NullPointerException     when the value is null
+         */
         public Guess {
             Objects.requireNonNull(value, "value");
             if (!(target instanceof Expr.Name || target instanceof Expr.Index || target instanceof Expr.Slice)) {

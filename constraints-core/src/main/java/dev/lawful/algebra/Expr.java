@@ -11,6 +11,7 @@ public sealed interface Expr {
 
     /** A non-negative numeric literal (a leading minus is a {@link Neg}). */
     record Num(double value) implements Expr {
+        /** @throws IllegalArgumentException when the value is not finite */
         public Num {
             if (!Double.isFinite(value)) {
                 throw new IllegalArgumentException("a literal must be finite, found " + value);
@@ -20,6 +21,7 @@ public sealed interface Expr {
 
     /** A reference to a declared input, output, constant or definition, the whole of it. */
     record Name(String name) implements Expr {
+        /** @throws NullPointerException when the name is null */
         public Name {
             Objects.requireNonNull(name, "name");
         }
@@ -27,6 +29,7 @@ public sealed interface Expr {
 
     /** One element {@code name[index]} of a declared vector, zero-based. */
     record Index(String name, int index) implements Expr {
+        /** @throws NullPointerException when the name is null */
         public Index {
             Objects.requireNonNull(name, "name");
         }
@@ -34,6 +37,7 @@ public sealed interface Expr {
 
     /** The elements {@code name[from:to]} of a declared vector, half-open and zero-based. */
     record Slice(String name, int from, int to) implements Expr {
+        /** @throws NullPointerException when the name is null */
         public Slice {
             Objects.requireNonNull(name, "name");
         }
@@ -41,6 +45,7 @@ public sealed interface Expr {
 
     /** Negation {@code -operand}. */
     record Neg(Expr operand) implements Expr {
+        /** @throws NullPointerException when the operand is null */
         public Neg {
             Objects.requireNonNull(operand, "operand");
         }
@@ -48,6 +53,7 @@ public sealed interface Expr {
 
     /** A binary operation, element-wise on vectors with scalar broadcasting. */
     record Binary(Op op, Expr left, Expr right) implements Expr {
+        /** @throws NullPointerException when the operator or an operand is null */
         public Binary {
             Objects.requireNonNull(op, "op");
             Objects.requireNonNull(left, "left");
@@ -57,6 +63,11 @@ public sealed interface Expr {
 
     /** A call of a built-in function or reduction, such as {@code exp(x)} or {@code dot(a, b)}. */
     record Call(String function, List<Expr> args) implements Expr {
+        /**
+         * Keeps an unmodifiable copy of the arguments.
+         *
+         * @throws NullPointerException when the function name, the list or an argument is null
+         */
         public Call {
             Objects.requireNonNull(function, "function");
             args = List.copyOf(args);
@@ -65,6 +76,11 @@ public sealed interface Expr {
 
     /** A vector literal {@code [e0, e1, ...]} of scalar expressions. */
     record Vector(List<Expr> elements) implements Expr {
+        /**
+         * Keeps an unmodifiable copy of the elements.
+         *
+         * @throws NullPointerException when the list or an element is null
+         */
         public Vector {
             elements = List.copyOf(elements);
         }

@@ -426,7 +426,7 @@ public final class LawSet {
         if (ex.definitionShape(name) != 0) {
             Diagnostics d = new Diagnostics(new SourceText("<expression>", expression));
             d.error(new Span(0, expression.length()), "expected a scalar expression, found "
-                    + Checker.shapeText(ex.definitionShape(name)));
+                    + ExprRules.shapeText(ex.definitionShape(name)));
             d.throwIfErrors();
         }
         return ex.definition(name).get(0);

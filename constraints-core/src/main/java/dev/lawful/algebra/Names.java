@@ -8,14 +8,16 @@ public final class Names {
     private Names() {
     }
 
+    /** Names longer than this get suggestions only for a difference in case (edit distance would cost too much). */
+    private static final int MAX_SUGGEST_LENGTH = 64;
+
     /**
+     * @param name       the name as written
+     * @param candidates the known names, read only
      * @return a candidate that differs from {@code name} only in case; otherwise, for names of one or two
      *         characters, a candidate with one letter more; for longer names, the candidate with the smallest edit
      *         distance if that is at most a third of the name's length (at least 1, at most 3); otherwise null
      */
-    /** Names longer than this get suggestions only for a difference in case (edit distance would cost too much). */
-    private static final int MAX_SUGGEST_LENGTH = 64;
-
     public static String nearest(String name, Iterable<String> candidates) {
         for (String c : candidates) {
             if (c.equalsIgnoreCase(name) && !c.equals(name)) {

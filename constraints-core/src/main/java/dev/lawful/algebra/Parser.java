@@ -7,31 +7,33 @@ import java.util.Map;
 
 /**
  * Recursive-descent parser of the law language, one method per rule of this grammar ({@code NL} is a line end,
- * see {@link Scanner} for when line ends are ignored):
+ * see {@link Scanner} for when line ends are ignored and for {@code #} comments, which never reach the parser):
  *
  * <pre>
- * file        = { [ statement ] NL } EOF
- * statement   = variable | constant | definition | law | completion
+ * file        = [ statement ] { NL [ statement ] } EOF
+ * statement   = variable | constant | definition | law | completion | guess
  * variable    = ( "input" | "output" ) NAME [ "[" INT "]" ] [ unit ]
  * constant    = "const" NAME "=" ( signed | "[" signed { "," signed } "]" ) [ unit ]
  * definition  = "let" NAME "=" expr
  * law         = "law" NAME ":" expr "=" expr
  * completion  = "complete" target { "," target }
- * guess       = "guess" target "=" expr                 -- Newton's starting value for completed outputs
+ * guess       = "guess" target "=" expr                 -- Newton's starting value for the target's elements
  * target      = NAME [ "[" INT [ ":" INT ] "]" ]
  * expr        = term { ( "+" | "-" ) term }
  * term        = unary { ( "*" | "/" ) unary }
  * unary       = "-" unary | power
  * power       = primary [ "^" unary ]                  -- right-associative; -x^2 is -(x^2)
- * primary     = NUMBER | NAME [ "[" INT [ ":" INT ] "]" ] | NAME "(" expr { "," expr } ")"
+ * primary     = NUMBER | NAME [ "[" INT [ ":" INT ] "]" ] | NAME "(" [ expr { "," expr } ] ")"
  *             | "(" expr ")" | "[" expr { "," expr } "]"
  * signed      = [ "-" ] NUMBER
  * unit        = the rest of the line, see {@link UnitParser}
  * </pre>
  *
- * <p>Indices are zero-based integer literals; a slice {@code v[a:b]} holds elements a to b-1. A syntax error is
- * reported and the parser skips to the next line, so one pass finds the errors of every statement. Expressions
- * deeper than {@link Limits#MAX_NESTING_DEPTH} are rejected before any recursion can exhaust the stack.
+ * <p>A NAME is never a statement keyword ({@link #KEYWORDS}): one inside an expression is an error here, and
+ * declaring one is an error of the checker. Lengths and indices are whole-number literals (INT), indices from 0;
+ * a slice {@code v[a:b]} holds elements a to b-1. A syntax error is reported and the parser skips
+ * to the next line, so one pass finds the errors of every statement. Expressions deeper than
+ * {@link Limits#MAX_NESTING_DEPTH} are rejected before any recursion can exhaust the stack.
  */
 final class Parser {
     /** The parsed statements, and where each piece was written. */
@@ -323,63 +325,74 @@ final class Parser {
         int start = pos;
         Token t = peek();
         switch (t.kind()) {
-            case NUMBER: {
+            case NUMBER:
                 pos++;
                 return place(new Expr.Num(number(t)), start, 1);
-            }
-            case IDENT: {
+            case IDENT:
                 pos++;
-                if (KEYWORDS.contains(t.text())) {
-                    diagnostics.error(t.span(), "expected an expression, found the keyword '" + t.text()
-                            + "'; a statement starts on a new line");
-                    throw new Abandon();
-                }
-                if (peek().kind() == TokenKind.LPAREN) {
-                    return call(t, start);
-                }
-                if (peek().kind() == TokenKind.LBRACKET) {
-                    return element(t, start);
-                }
-                return place(new Expr.Name(t.text()), start, 1);
-            }
-            case LPAREN: {
+                return named(t, start);
+            case LPAREN:
                 pos++;
-                Expr inner = expr();
-                if (peek().kind() == TokenKind.EOF || peek().kind() == TokenKind.NEWLINE) {
-                    diagnostics.error(t.span(), "unclosed '(': expected ')' before the end of the "
-                            + (peek().kind() == TokenKind.EOF ? "file" : "line"));
-                    throw new Abandon();
-                }
-                expect(TokenKind.RPAREN, "')' to close the '(' at column " + diagnostics.source().column(t.offset()));
-                depths.put(inner, depth(inner) + 1);
-                checkDepth(inner, start);
-                return inner;
-            }
-            case LBRACKET: {
+                return parenthesized(t, start);
+            case LBRACKET:
                 pos++;
-                List<Expr> elements = new ArrayList<>();
-                int deepest = 0;
-                enter();
-                do {
-                    if (!elements.isEmpty()) {
-                        pos++;
-                    }
-                    if (elements.size() >= Limits.MAX_VECTOR_LENGTH) {
-                        diagnostics.error(peek().span(), "vector literal longer than the limit of "
-                                + Limits.MAX_VECTOR_LENGTH + " elements");
-                        throw new Abandon();
-                    }
-                    Expr e = expr();
-                    deepest = Math.max(deepest, depth(e));
-                    elements.add(e);
-                } while (peek().kind() == TokenKind.COMMA);
-                recursion--;
-                expect(TokenKind.RBRACKET, "',' or ']' in the vector");
-                return place(new Expr.Vector(elements), start, 1 + deepest);
-            }
+                return vector(start);
             default:
                 throw unexpected(t, "an expression");
         }
+    }
+
+    /** A name already consumed: a variable, constant or definition, one of its elements, or a function call. */
+    private Expr named(Token t, int start) {
+        if (KEYWORDS.contains(t.text())) {
+            diagnostics.error(t.span(), "expected an expression, found the keyword '" + t.text()
+                    + "'; a statement starts on a new line");
+            throw new Abandon();
+        }
+        if (peek().kind() == TokenKind.LPAREN) {
+            return call(t, start);
+        }
+        if (peek().kind() == TokenKind.LBRACKET) {
+            return element(t, start);
+        }
+        return place(new Expr.Name(t.text()), start, 1);
+    }
+
+    /** The expression after an opening parenthesis already consumed; the parenthesis counts one level of depth. */
+    private Expr parenthesized(Token open, int start) {
+        Expr inner = expr();
+        if (peek().kind() == TokenKind.EOF || peek().kind() == TokenKind.NEWLINE) {
+            diagnostics.error(open.span(), "unclosed '(': expected ')' before the end of the "
+                    + (peek().kind() == TokenKind.EOF ? "file" : "line"));
+            throw new Abandon();
+        }
+        expect(TokenKind.RPAREN, "')' to close the '(' at column " + diagnostics.source().column(open.offset()));
+        depths.put(inner, depth(inner) + 1);
+        checkDepth(inner, start);
+        return inner;
+    }
+
+    /** A vector literal after its opening bracket, already consumed. */
+    private Expr vector(int start) {
+        List<Expr> elements = new ArrayList<>();
+        int deepest = 0;
+        enter();
+        do {
+            if (!elements.isEmpty()) {
+                pos++;
+            }
+            if (elements.size() >= Limits.MAX_VECTOR_LENGTH) {
+                diagnostics.error(peek().span(), "vector literal longer than the limit of "
+                        + Limits.MAX_VECTOR_LENGTH + " elements");
+                throw new Abandon();
+            }
+            Expr e = expr();
+            deepest = Math.max(deepest, depth(e));
+            elements.add(e);
+        } while (peek().kind() == TokenKind.COMMA);
+        recursion--;
+        expect(TokenKind.RBRACKET, "',' or ']' in the vector");
+        return place(new Expr.Vector(elements), start, 1 + deepest);
     }
 
     private Expr call(Token name, int start) {

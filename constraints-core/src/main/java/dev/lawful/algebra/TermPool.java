@@ -503,24 +503,9 @@ final class TermPool {
                 sb.append(variableNames[t.variable]);
                 break;
             case SUM:
-                for (int i = 0; i < t.args.length; i++) {
-                    Term a = t.args[i];
-                    if (i == 0) {
-                        print(a, sb, 2, depth + 1);
-                        continue;
-                    }
-                    if (a.kind == Term.Kind.NEG) {
-                        sb.append(" - ");
-                        print(a.args[0], sb, 2, depth + 1);
-                    } else if (a.kind == Term.Kind.CONST && a.value < 0) {
-                        sb.append(" - ").append(ExprPrinter.number(-a.value));
-                    } else if (a.kind == Term.Kind.MUL && a.args[0].kind == Term.Kind.CONST && a.args[0].value < 0) {
-                        sb.append(" - ").append(ExprPrinter.number(-a.args[0].value)).append(" * ");
-                        print(a.args[1], sb, 4, depth + 1);
-                    } else {
-                        sb.append(" + ");
-                        print(a, sb, 2, depth + 1);
-                    }
+                print(t.args[0], sb, 2, depth + 1);
+                for (int i = 1; i < t.args.length; i++) {
+                    printAddend(t.args[i], sb, depth);
                 }
                 break;
             case NEG:
@@ -548,6 +533,22 @@ final class TermPool {
         }
         if (parens) {
             sb.append(')');
+        }
+    }
+
+    /** Prints a later addend of a sum, as a subtraction when it is negated or has a negative factor. */
+    private void printAddend(Term a, StringBuilder sb, int depth) {
+        if (a.kind == Term.Kind.NEG) {
+            sb.append(" - ");
+            print(a.args[0], sb, 2, depth + 1);
+        } else if (a.kind == Term.Kind.CONST && a.value < 0) {
+            sb.append(" - ").append(ExprPrinter.number(-a.value));
+        } else if (a.kind == Term.Kind.MUL && a.args[0].kind == Term.Kind.CONST && a.args[0].value < 0) {
+            sb.append(" - ").append(ExprPrinter.number(-a.args[0].value)).append(" * ");
+            print(a.args[1], sb, 4, depth + 1);
+        } else {
+            sb.append(" + ");
+            print(a, sb, 2, depth + 1);
         }
     }
 

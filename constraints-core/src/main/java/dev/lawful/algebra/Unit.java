@@ -18,6 +18,10 @@ public record Unit(String text, double factor, Dimension dimension) {
     /** The unit of a pure number. */
     public static final Unit NONE = new Unit("", 1.0, Dimension.NONE);
 
+    /**
+     * @throws NullPointerException     when the text or dimension is null
+     * @throws IllegalArgumentException when the factor is not positive and finite
+     */
     public Unit {
         Objects.requireNonNull(text, "text");
         Objects.requireNonNull(dimension, "dimension");
