@@ -118,14 +118,7 @@ final class ProjectionChecks {
 
     /** @return {@code 'a'}, {@code 'a' and 'b'}, {@code 'a', 'b' and 'c'} */
     static String quoted(List<String> names) {
-        StringBuilder sb = new StringBuilder();
-        for (int i = 0; i < names.size(); i++) {
-            if (i > 0) {
-                sb.append(i == names.size() - 1 ? " and " : ", ");
-            }
-            sb.append('\'').append(names.get(i)).append('\'');
-        }
-        return sb.toString();
+        return Dependence.quoted(names);
     }
 
     private static String abbreviate(String s) {

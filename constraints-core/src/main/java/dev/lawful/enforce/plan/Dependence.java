@@ -253,8 +253,11 @@ public final class Dependence {
         return names;
     }
 
-    /** @return {@code 'a'}, {@code 'a' and 'b'}, {@code 'a', 'b' and 'c'} */
-    private static String quoted(List<String> names) {
+    /**
+     * @param names law names
+     * @return {@code 'a'}, {@code 'a' and 'b'}, {@code 'a', 'b' and 'c'}
+     */
+    public static String quoted(List<String> names) {
         StringBuilder sb = new StringBuilder();
         for (int i = 0; i < names.size(); i++) {
             if (i > 0) {
