@@ -171,6 +171,52 @@ class DenseQpEdgeTest {
     }
 
     @Test
+    void scalingRowsOrWChangesNeitherTheSolutionNorTheActiveSet() {
+        trials("scale invariance", 0x0B9L, 150, r -> {
+            QpInstance p = QpInstance.random(r, 12, 16, 100);
+            QpInstance.Solution plain = assertCertified(p, p.solveWith(new DenseQp(12, 16)));
+            // each row of A with its b times c_i, W times c_W: the tolerances are relative, so nothing else changes;
+            // u is the same point, λ_i becomes c_W λ_i / c_i
+            double cw = Math.pow(10, uniform(r, -6, 6));
+            double[] c = new double[p.m()];
+            double[][] a = new double[p.m()][];
+            double[] b = new double[p.m()];
+            for (int i = 0; i < p.m(); i++) {
+                c[i] = Math.pow(10, uniform(r, -6, 6));
+                a[i] = p.a()[i].clone();
+                for (int j = 0; j < p.k(); j++) {
+                    a[i][j] *= c[i];
+                }
+                b[i] = p.b()[i] * c[i];
+            }
+            double[][] w = new double[p.k()][];
+            for (int j = 0; j < p.k(); j++) {
+                w[j] = p.w()[j].clone();
+                for (int l = 0; l < p.k(); l++) {
+                    w[j][l] *= cw;
+                }
+            }
+            QpInstance scaled = new QpInstance(w, a, b, p.z(), p.u0());
+            QpInstance.Solution s = assertCertified(scaled, scaled.solveWith(new DenseQp(12, 16)));
+            assertArrayEquals(plain.activeSet(), s.activeSet(), "active set");
+            double size = 1;
+            double largest = 0;
+            for (int j = 0; j < p.k(); j++) {
+                size = Math.max(size, Math.abs(plain.u()[j]));
+            }
+            for (int i = 0; i < p.m(); i++) {
+                largest = Math.max(largest, plain.lambda()[i]);
+            }
+            for (int j = 0; j < p.k(); j++) {
+                assertEquals(plain.u()[j], s.u()[j], 1e-12 * size, "u_" + j);
+            }
+            for (int i = 0; i < p.m(); i++) {
+                assertEquals(plain.lambda()[i], s.lambda()[i] * c[i] / cw, 1e-10 * largest, "λ_" + i);
+            }
+        });
+    }
+
+    @Test
     void nonFiniteSlacksAreReported() {
         DenseQp qp = new DenseQp(2, 2);
         assertTrue(qp.factor(new double[] {1, 0, 0, 1}, 2));
