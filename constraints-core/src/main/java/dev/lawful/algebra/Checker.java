@@ -51,11 +51,15 @@ final class Checker {
     private final CallChecker calls;
     private final Map<String, Symbol> symbols = new LinkedHashMap<>();
     private final Map<String, Integer> lawLines = new LinkedHashMap<>();
+    /** The names in {@link #lawLines} that belong to limits (laws and limits share one namespace). */
+    private final Set<String> limitNames = new HashSet<>();
     private final Map<String, Integer> laterNames = new LinkedHashMap<>();
     private final Set<String> used = new HashSet<>();
     /** The unit of each definition: the declared unit it follows from, or the coherent SI unit. */
     final Map<String, Unit> definitionUnits = new LinkedHashMap<>();
     final Map<String, LawInfo> laws = new LinkedHashMap<>();
+    /** Each checked limit: its element count and the unit of its parts (declared, or coherent SI). */
+    final Map<String, LawInfo> limits = new LinkedHashMap<>();
     private int completionLine = -1;
     /** "law 'x': " or "definition 'q': " while checking one, so a message names what it is about */
     private String context = "";
@@ -106,6 +110,10 @@ final class Checker {
                 context = "law '" + law.name() + "': ";
                 law(law, line);
                 context = "";
+            } else if (d instanceof Declaration.Limit limit) {
+                context = "limit '" + limit.name() + "': ";
+                limit(limit, line);
+                context = "";
             } else if (d instanceof Declaration.Completion c) {
                 completion(c, line);
             } else if (d instanceof Declaration.Guess g) {
@@ -114,6 +122,10 @@ final class Checker {
                 context = "";
             }
         }
+        warnUnused(declarations);
+    }
+
+    private void warnUnused(List<Declaration> declarations) {
         for (Declaration d : declarations) {
             String kind = d instanceof Declaration.Constant ? "constant" : d instanceof Declaration.Definition
                     ? "definition" : null;
@@ -152,8 +164,8 @@ final class Checker {
             return;
         }
         if (lawLines.containsKey(name)) {
-            diagnostics.error(nameSpan(d), "'" + name + "' is already the name of the law at line "
-                    + lawLines.get(name));
+            diagnostics.error(nameSpan(d), "'" + name + "' is already the name of the "
+                    + (limitNames.contains(name) ? "limit" : "law") + " at line " + lawLines.get(name));
             return;
         }
         symbols.put(name, symbol);
@@ -161,7 +173,10 @@ final class Checker {
 
     private void law(Declaration.Law law, int line) {
         Span at = nameSpan(law);
-        if (lawLines.containsKey(law.name())) {
+        if (limitNames.contains(law.name())) {
+            diagnostics.error(at, "law '" + law.name() + "' has the name of the limit at line " + lawLines.get(law.name())
+                    + "; laws and limits share one namespace");
+        } else if (lawLines.containsKey(law.name())) {
             diagnostics.error(at, "law '" + law.name() + "' is already declared at line " + lawLines.get(law.name()));
         } else if (symbols.containsKey(law.name())) {
             diagnostics.error(at, "law name '" + law.name() + "' is already declared at line "
@@ -197,6 +212,60 @@ final class Checker {
                 : right.unit() != null && right.unit().dimension().equals(dim) ? right.unit()
                 : Units.coherent(dim);
         laws.put(law.name(), new LawInfo(shape, unit));
+    }
+
+    /** Like a law: every part in one unit, lengths that broadcast, and at least one output mentioned. */
+    private void limit(Declaration.Limit limit, int line) {
+        Span at = nameSpan(limit);
+        String name = limit.name();
+        if (lawLines.containsKey(name)) {
+            diagnostics.error(at, limitNames.contains(name) ? "limit '" + name + "' is already declared at line "
+                    + lawLines.get(name) : "limit '" + name + "' has the name of the law at line " + lawLines.get(name)
+                    + "; laws and limits share one namespace");
+        } else if (symbols.containsKey(name)) {
+            diagnostics.error(at, "limit name '" + name + "' is already declared at line " + symbols.get(name).line());
+        } else {
+            lawLines.put(name, line);
+            limitNames.add(name);
+        }
+        List<Info> parts = new ArrayList<>();
+        for (Expr e : limit.parts()) {
+            parts.add(expr(e));
+        }
+        if (parts.contains(null)) {
+            return;
+        }
+        Info joined = parts.get(0);
+        // a literal 0 fits any unit, so the part to compare with is the last one that has a unit
+        Info known = joined;
+        boolean mentions = joined.mentionsOutput();
+        for (int i = 1; i < parts.size(); i++) {
+            Info right = parts.get(i);
+            Span rightAt = spanOf(limit.parts().get(i));
+            String what = parts.size() == 2 ? "between the sides of limit '" + name + "'"
+                    : "between the sides of the " + (i == 1 ? "first" : "second") + " '"
+                    + limit.relations().get(i - 1).symbol() + "' of limit '" + name + "'";
+            int shape = rules.broadcast(joined, right, what, rightAt, context);
+            if (shape < 0) {
+                return;
+            }
+            if (known.dimension() != null && right.dimension() != null && !known.dimension().equals(right.dimension())) {
+                diagnostics.error(rightAt, "unit mismatch " + what + ": left is " + ExprRules.describe(known)
+                        + ", right is " + ExprRules.describe(right));
+                return;
+            }
+            known = right.dimension() != null ? right : known;
+            Dimension dim = joined.dimension() != null ? joined.dimension() : right.dimension();
+            Unit unit = joined.unit() != null ? joined.unit() : right.unit();
+            joined = new Info(shape, dim, unit, mentions |= right.mentionsOutput(), null);
+        }
+        if (!mentions) {
+            diagnostics.error(at, "limit '" + name + "' involves no output: a limit must constrain at least one output");
+            return;
+        }
+        Dimension dim = joined.dimension() == null ? Dimension.NONE : joined.dimension();
+        Unit unit = joined.unit() != null && joined.unit().dimension().equals(dim) ? joined.unit() : Units.coherent(dim);
+        limits.put(name, new LawInfo(joined.shape(), unit));
     }
 
     private void completion(Declaration.Completion c, int line) {

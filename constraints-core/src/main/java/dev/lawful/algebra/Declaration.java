@@ -125,6 +125,72 @@ public sealed interface Declaration {
         }
     }
 
+    /** The relation between two neighbouring parts of a limit. */
+    enum Relation {
+        /** {@code <=}: the left part is at most the right one */
+        AT_MOST("<="),
+        /** {@code >=}: the left part is at least the right one */
+        AT_LEAST(">=");
+
+        private final String symbol;
+
+        Relation(String symbol) {
+            this.symbol = symbol;
+        }
+
+        /** @return how the relation is written */
+        public String symbol() {
+            return symbol;
+        }
+    }
+
+    /**
+     * A named limit: an inequality that must hold together with the laws, {@code a >= b}, {@code a <= b}, or a
+     * two-sided chain {@code lo <= e <= hi} (or {@code hi >= e >= lo}). A vector limit stands for one scalar limit
+     * per element, like a vector law.
+     *
+     * @param name      its name (laws and limits share one namespace)
+     * @param parts     the two or three expressions, as written from left to right
+     * @param relations the relation between each part and the next: one fewer than the parts, all the same
+     */
+    record Limit(String name, List<Expr> parts, List<Relation> relations) implements Declaration {
+        /**
+         * Keeps unmodifiable copies of the parts and relations.
+         *
+         * @throws IllegalArgumentException when there are not two or three parts, not one relation fewer, or a
+         *                                  chain mixes {@code <=} and {@code >=} (which would bound nothing)
+         * @throws NullPointerException     when the name, a list or an element is null
+         */
+        public Limit {
+            Objects.requireNonNull(name, "name");
+            parts = List.copyOf(parts);
+            relations = List.copyOf(relations);
+            if (parts.size() < 2 || parts.size() > 3 || relations.size() != parts.size() - 1) {
+                throw new IllegalArgumentException("a limit has two or three parts and one relation fewer, found "
+                        + parts.size() + " parts and " + relations.size() + " relations");
+            }
+            if (relations.size() == 2 && relations.get(0) != relations.get(1)) {
+                throw new IllegalArgumentException("a two-sided limit uses one relation twice ('lo <= e <= hi' or"
+                        + " 'hi >= e >= lo')");
+            }
+        }
+
+        /** @return whether it bounds its middle part from both sides ({@code lo <= e <= hi}) */
+        public boolean twoSided() {
+            return parts.size() == 3;
+        }
+
+        @Override
+        public String text() {
+            StringBuilder sb = new StringBuilder("limit ").append(name).append(": ")
+                    .append(ExprPrinter.print(parts.get(0)));
+            for (int i = 0; i < relations.size(); i++) {
+                sb.append(' ').append(relations.get(i).symbol()).append(' ').append(ExprPrinter.print(parts.get(i + 1)));
+            }
+            return sb.toString();
+        }
+    }
+
     /**
      * Which outputs the layer computes from the laws (the others are predicted by the network).
      *

@@ -11,11 +11,13 @@ import java.util.Map;
  *
  * <pre>
  * file        = [ statement ] { NL [ statement ] } EOF
- * statement   = variable | constant | definition | law | completion | guess
+ * statement   = variable | constant | definition | law | limit | completion | guess
  * variable    = ( "input" | "output" ) NAME [ "[" INT "]" ] [ unit ]
  * constant    = "const" NAME "=" ( signed | "[" signed { "," signed } "]" ) [ unit ]
  * definition  = "let" NAME "=" expr
  * law         = "law" NAME ":" expr "=" expr
+ * limit       = "limit" NAME ":" expr relation expr [ relation expr ]   -- a chain repeats its relation
+ * relation    = "<=" | ">="
  * completion  = "complete" target { "," target }
  * guess       = "guess" target "=" expr                 -- Newton's starting value for the target's elements
  * target      = NAME [ "[" INT [ ":" INT ] "]" ]
@@ -29,7 +31,8 @@ import java.util.Map;
  * unit        = the rest of the line, see {@link UnitParser}
  * </pre>
  *
- * <p>A NAME is never a statement keyword ({@link #KEYWORDS}): one inside an expression is an error here, and
+ * <p>A limit's relations bind more loosely than any operator, so {@code q + dqdt * dt >= 0} compares the whole sum.
+ * A NAME is never a statement keyword ({@link #KEYWORDS}): one inside an expression is an error here, and
  * declaring one is an error of the checker. Lengths and indices are whole-number literals (INT), indices from 0;
  * a slice {@code v[a:b]} holds elements a to b-1. A syntax error is reported and the parser skips
  * to the next line, so one pass finds the errors of every statement. Expressions deeper than
@@ -52,9 +55,11 @@ final class Parser {
         }
     }
 
-    static final List<String> KEYWORDS = List.of("input", "output", "const", "let", "law", "complete", "guess");
+    static final List<String> KEYWORDS = List.of("input", "output", "const", "let", "law", "limit", "complete",
+            "guess");
 
     private final Diagnostics diagnostics;
+    private final Literals literals;
     private final List<Token> tokens;
     private final Places places = new Places();
     private final Map<Expr, Integer> depths = new IdentityHashMap<>();
@@ -62,7 +67,7 @@ final class Parser {
     private int recursion;
 
     /** Thrown to abandon the current statement after its error was reported. */
-    private static final class Abandon extends RuntimeException {
+    static final class Abandon extends RuntimeException {
         private static final long serialVersionUID = 1L;
 
         Abandon() {
@@ -72,6 +77,7 @@ final class Parser {
 
     Parser(Diagnostics diagnostics) {
         this.diagnostics = diagnostics;
+        this.literals = new Literals(diagnostics);
         this.tokens = new Scanner(diagnostics).scan();
     }
 
@@ -114,6 +120,8 @@ final class Parser {
                     return definition();
                 case "law":
                     return law();
+                case "limit":
+                    return limit();
                 case "complete":
                     return completion();
                 case "guess":
@@ -159,7 +167,7 @@ final class Parser {
             throw unexpected(t, "a vector length (a whole number)");
         }
         pos++;
-        int n = integer(t);
+        int n = literals.integer(t);
         if (n < 1 || n > Limits.MAX_VECTOR_LENGTH) {
             diagnostics.error(t.span(), "vector length must be between 1 and " + Limits.MAX_VECTOR_LENGTH + ", found "
                     + t.text());
@@ -216,7 +224,7 @@ final class Parser {
             throw unexpected(t, "a number");
         }
         pos++;
-        double v = number(t);
+        double v = literals.number(t);
         return negative ? -v : v;
     }
 
@@ -235,11 +243,47 @@ final class Parser {
         Token name = name("the law's name after 'law'");
         expect(TokenKind.COLON, "':' after the law's name");
         Expr lhs = expr();
+        if (relation(peek()) != null) {
+            diagnostics.error(peek().span(), "expected '=' between the two sides of the law, found '" + peek().text()
+                    + "'; an inequality is a 'limit' statement");
+            throw new Abandon();
+        }
         expect(TokenKind.EQUALS, "'=' between the two sides of the law");
         Expr rhs = expr();
         Declaration d = new Declaration.Law(name.text(), lhs, rhs);
         places.names.put(d, name.span());
         return d;
+    }
+
+    /** {@code lo <= e <= hi} is one chain; a third relation or a mixed pair bounds nothing useful, so both are errors. */
+    private Declaration limit() {
+        pos++;
+        Token name = name("the limit's name after 'limit'");
+        expect(TokenKind.COLON, "':' after the limit's name");
+        List<Expr> parts = new ArrayList<>();
+        List<Declaration.Relation> relations = new ArrayList<>();
+        parts.add(expr());
+        if (relation(peek()) == null) {
+            throw unexpected(peek(), "'<=' or '>=' between the parts of the limit");
+        }
+        while (relation(peek()) != null) {
+            Token op = next();
+            if (relations.size() == 2 || (!relations.isEmpty() && relations.get(0) != relation(op))) {
+                diagnostics.error(op.span(), "a limit is 'a <= b', 'a >= b' or a two-sided 'lo <= e <= hi' (or"
+                        + " 'hi >= e >= lo'), found another '" + op.text() + "'; write one limit per bound");
+                throw new Abandon();
+            }
+            relations.add(relation(op));
+            parts.add(expr());
+        }
+        Declaration d = new Declaration.Limit(name.text(), parts, relations);
+        places.names.put(d, name.span());
+        return d;
+    }
+
+    private static Declaration.Relation relation(Token t) {
+        return t.kind() == TokenKind.LESS_EQUAL ? Declaration.Relation.AT_MOST
+                : t.kind() == TokenKind.GREATER_EQUAL ? Declaration.Relation.AT_LEAST : null;
     }
 
     private Declaration completion() {
@@ -327,7 +371,7 @@ final class Parser {
         switch (t.kind()) {
             case NUMBER:
                 pos++;
-                return place(new Expr.Num(number(t)), start, 1);
+                return place(new Expr.Num(literals.number(t)), start, 1);
             case IDENT:
                 pos++;
                 return named(t, start);
@@ -422,7 +466,7 @@ final class Parser {
             throw unexpected(first, "an index (a whole number) after '['");
         }
         pos++;
-        int from = index(first);
+        int from = literals.index(first);
         if (peek().kind() == TokenKind.COLON) {
             pos++;
             Token second = peek();
@@ -430,7 +474,7 @@ final class Parser {
                 throw unexpected(second, "the end of the slice (a whole number) after ':'");
             }
             pos++;
-            int to = index(second);
+            int to = literals.index(second);
             expect(TokenKind.RBRACKET, "']' to close the slice");
             if (to <= from) {
                 diagnostics.error(span(start), "empty slice " + name.text() + "[" + from + ":" + to
@@ -535,44 +579,5 @@ final class Parser {
 
     private Token next() {
         return tokens.get(pos++);
-    }
-
-    private double number(Token t) {
-        double v;
-        try {
-            v = Double.parseDouble(t.text());
-        } catch (NumberFormatException e) {
-            diagnostics.error(t.span(), "expected a number, found '" + t.text() + "'");
-            throw new Abandon();
-        }
-        if (!Double.isFinite(v)) {
-            diagnostics.error(t.span(), "number " + t.text() + " is out of the range of double (about 1.8e308)");
-            throw new Abandon();
-        }
-        return v;
-    }
-
-    private int integer(Token t) {
-        String s = t.text();
-        for (int i = 0; i < s.length(); i++) {
-            if (!Scanner.isDigit(s.charAt(i))) {
-                diagnostics.error(t.span(), "expected a whole number, found " + s);
-                throw new Abandon();
-            }
-        }
-        if (s.length() > 9) {
-            return Integer.MAX_VALUE;
-        }
-        return Integer.parseInt(s);
-    }
-
-    private int index(Token t) {
-        int i = integer(t);
-        if (i > Limits.MAX_VECTOR_LENGTH) {
-            diagnostics.error(t.span(), "index " + t.text() + " is beyond the vector length limit of "
-                    + Limits.MAX_VECTOR_LENGTH);
-            throw new Abandon();
-        }
-        return i;
     }
 }

@@ -7,10 +7,10 @@ import java.util.List;
  * Hand-written scanner for the law language.
  *
  * <p>Tokens: names ({@code [A-Za-z_][A-Za-z0-9_]*}), numbers ({@code 12}, {@code 1.5}, {@code .5}, {@code 6.02e23},
- * {@code 1E-5}), the punctuation {@code + - * / ^ ( ) [ ] , : = .}, and line ends. A {@code #} starts a comment that
- * runs to the end of the line. A line end is a statement separator, except inside parentheses or brackets and
- * after a token that cannot end a statement ({@code + - * / ^ = , :}), so long laws may be broken after an
- * operator. Characters outside the language become {@link TokenKind#ERROR} tokens, which the parser reports where
+ * {@code 1E-5}), the punctuation {@code + - * / ^ ( ) [ ] , : = .}, the relations {@code <=} and {@code >=}, and
+ * line ends. A {@code #} starts a comment that runs to the end of the line. A line end is a statement separator,
+ * except inside parentheses or brackets and after a token that cannot end a statement
+ * ({@code + - * / ^ = , : <= >=}), so long laws may be broken after an operator. Characters outside the language become {@link TokenKind#ERROR} tokens, which the parser reports where
  * it meets them (unit text may hold symbols such as the micro sign), so scanning never stops early.
  */
 public final class Scanner {
@@ -70,7 +70,7 @@ public final class Scanner {
 
     private static boolean continuesLine(TokenKind kind) {
         return switch (kind) {
-            case PLUS, MINUS, STAR, SLASH, CARET, EQUALS, COMMA, COLON -> true;
+            case PLUS, MINUS, STAR, SLASH, CARET, EQUALS, COMMA, COLON, LESS_EQUAL, GREATER_EQUAL -> true;
             default -> false;
         };
     }
@@ -105,6 +105,10 @@ public final class Scanner {
         }
         if (isDigit(c) || (c == '.' && pos + 1 < text.length() && isDigit(text.charAt(pos + 1)))) {
             return number(start);
+        }
+        if ((c == '<' || c == '>') && pos + 1 < text.length() && text.charAt(pos + 1) == '=') {
+            pos += 2;
+            return token(c == '<' ? TokenKind.LESS_EQUAL : TokenKind.GREATER_EQUAL, start);
         }
         pos++;
         TokenKind kind = switch (c) {

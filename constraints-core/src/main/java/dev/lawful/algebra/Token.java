@@ -35,6 +35,12 @@ public record Token(TokenKind kind, String text, int offset, int length) {
                 return "; write '^2' or '^3' for powers";
             case ";":
                 return "; write one statement per line";
+            case "<":
+            case ">":
+                return "; a limit is written with '<=' or '>='";
+            case "\u2264":
+            case "\u2265":
+                return "; write '<=' or '>='";
             default:
                 return "";
         }

@@ -6,6 +6,8 @@ public enum TokenKind {
     PLUS("'+'"), MINUS("'-'"), STAR("'*'"), SLASH("'/'"), CARET("'^'"),
     LPAREN("'('"), RPAREN("')'"), LBRACKET("'['"), RBRACKET("']'"),
     COMMA("','"), COLON("':'"), EQUALS("'='"), DOT("'.'"),
+    /** {@code <=} and {@code >=}, the relations of a limit */
+    LESS_EQUAL("'<='"), GREATER_EQUAL("'>='"),
     NEWLINE("end of line"), EOF("end of file"), ERROR("invalid character"),
     /** a malformed token whose error the scanner has already reported */
     BAD("malformed token");
