@@ -20,10 +20,13 @@ public final class ExpandedLaws {
     private final int[][] outputs;
     private final int[][] inputs;
     private final Expander expander;
+    private final List<ScalarLimit> limits;
+    private volatile LawEvaluator limitEvaluator;
 
-    ExpandedLaws(LawSet laws, TermPool pool, List<Expander.ScalarLaw> scalar, String[] variableNames,
-                 Expander expander) {
+    ExpandedLaws(LawSet laws, TermPool pool, List<Expander.ScalarLaw> scalar, List<ScalarLimit> limits,
+                 String[] variableNames, Expander expander) {
         this.laws = laws;
+        this.limits = List.copyOf(limits);
         this.expander = expander;
         this.pool = pool;
         this.scalar = List.copyOf(scalar);
@@ -171,6 +174,53 @@ public final class ExpandedLaws {
      */
     public Map<Integer, Term> guesses() {
         return java.util.Collections.unmodifiableMap(expander.guesses());
+    }
+
+    // ---- limits ----------------------------------------------------------------------------------------------
+
+    /** @return the number of scalar limits (a vector limit of length k counts k, a two-sided one twice that) */
+    public int limitCount() {
+        return limits.size();
+    }
+
+    /**
+     * @param j a scalar limit index, {@code 0 <= j < limitCount()}: limits in declaration order, element by element,
+     *          and the lower piece of a two-sided limit before its upper piece
+     * @return scalar limit {@code j}: its value g (g &ge; 0 inside), unit, outputs and, where it is a plain bound
+     *         on one output, that output and bound
+     * @throws IndexOutOfBoundsException when there is no such scalar limit
+     */
+    public ScalarLimit limit(int j) {
+        return limits.get(j);
+    }
+
+    /**
+     * Compiles the values g of every scalar limit, their natural scales and their Jacobians, compiled once and then
+     * shared. Its "laws" are the scalar limits in {@link #limit(int)} order, named as they are; values are in coherent
+     * SI units (divide by {@link ScalarLimit#unit()}'s factor to report them); the Jacobian entries dg/dy and dg/dx
+     * follow the layout of a law evaluator ({@link LawEvaluator#outputColumns(int)},
+     * {@link LawEvaluator#inputColumns(int)}).
+     *
+     * @return the evaluator of the scalar limits (with no laws when there are no limits)
+     */
+    public LawEvaluator limitEvaluator() {
+        LawEvaluator e = limitEvaluator;
+        if (e == null) {
+            synchronized (this) {
+                e = limitEvaluator;
+                if (e == null) {
+                    List<Term> values = new ArrayList<>(limits.size());
+                    List<String> names = new ArrayList<>(limits.size());
+                    for (ScalarLimit l : limits) {
+                        values.add(l.value());
+                        names.add(l.name());
+                    }
+                    e = LawEvaluator.forTerms(this, values, names, true);
+                    limitEvaluator = e;
+                }
+            }
+        }
+        return e;
     }
 
     TermPool pool() {

@@ -36,6 +36,21 @@ final class Expander {
     record ScalarLaw(String name, Declaration.Law law, int element, Term residual) {
     }
 
+    /**
+     * One scalar limit before its analysis: its name, declaration, element index (-1 for a scalar limit), the value
+     * g that is at least 0 inside it, and whether it bounds the limited part (the middle of a chain, else the left
+     * part) from below.
+     */
+    record RawLimit(String name, Declaration.Limit limit, int element, Term value, boolean lower) {
+    }
+
+    private final List<RawLimit> limits = new ArrayList<>();
+
+    /** @return the scalar limits, in declaration order, element by element, a chain's lower piece first */
+    List<RawLimit> limits() {
+        return limits;
+    }
+
     List<ScalarLaw> expand() {
         List<ScalarLaw> out = new ArrayList<>();
         for (Declaration d : laws.declarations()) {
@@ -64,11 +79,40 @@ final class Expander {
                     String name = shape == 0 ? law.name() : law.name() + "[" + i + "]";
                     out.add(new ScalarLaw(name, law, shape == 0 ? -1 : i, pool.sub(l.at(i), r.at(i))));
                 }
+            } else if (d instanceof Declaration.Limit limit) {
+                limit(limit);
             } else if (d instanceof Declaration.Guess g) {
                 guess(g);
             }
         }
         return out;
+    }
+
+    /** a >= b gives g = a - b, a <= b gives g = b - a; a chain gives e - lo (lower) and hi - e (upper). */
+    private void limit(Declaration.Limit limit) {
+        List<Values> parts = new ArrayList<>();
+        int shape = 0;
+        for (Expr e : limit.parts()) {
+            Values v = expr(e);
+            parts.add(v);
+            shape = Math.max(shape, v.shape());
+        }
+        boolean atMost = limit.relations().get(0) == Declaration.Relation.AT_MOST;
+        for (int i = 0; i < Math.max(shape, 1); i++) {
+            String name = shape == 0 ? limit.name() : limit.name() + "[" + i + "]";
+            int element = shape == 0 ? -1 : i;
+            Term first = parts.get(0).at(i);
+            Term second = parts.get(1).at(i);
+            if (!limit.twoSided()) {
+                Term g = atMost ? pool.sub(second, first) : pool.sub(first, second);
+                limits.add(new RawLimit(name, limit, element, g, !atMost));
+                continue;
+            }
+            Term lo = atMost ? first : parts.get(2).at(i);
+            Term hi = atMost ? parts.get(2).at(i) : first;
+            limits.add(new RawLimit(name + " (lower)", limit, element, pool.sub(second, lo), true));
+            limits.add(new RawLimit(name + " (upper)", limit, element, pool.sub(hi, second), false));
+        }
     }
 
     private final Map<Integer, Term> guesses = new java.util.TreeMap<>();

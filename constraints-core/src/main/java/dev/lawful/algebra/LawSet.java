@@ -12,9 +12,10 @@ import java.util.Map;
 import java.util.Optional;
 
 /**
- * An immutable, checked set of laws with its declarations: inputs x, outputs y, constants, definitions, laws and
- * optionally which outputs the layer completes. Built from law text ({@link #parse(String, String)},
- * {@link #read(Path)}) or with {@link #builder()}; both give equal law sets for the same statements, and
+ * An immutable, checked set of laws with its declarations: inputs x, outputs y, constants, definitions, laws,
+ * limits (inequalities that hold together with the laws) and optionally which outputs the layer completes. Built
+ * from law text ({@link #parse(String, String)}, {@link #read(Path)}) or with {@link #builder()}; both give equal
+ * law sets for the same statements, and
  * {@link #toString()} prints law text that parses back to an equal law set.
  *
  * <p>Flat layout: input elements are numbered in declaration order (a vector contributes its elements in order),
@@ -30,6 +31,9 @@ public final class LawSet {
     private final Map<String, Unit> definitionUnits;
     /** Each law's reporting unit, in the units the file declares where a side allows ({@link DeclaredLawUnit}). */
     private final Map<String, Unit> lawUnits = new LinkedHashMap<>();
+    private final Map<String, Checker.LawInfo> limitInfo;
+    /** Each limit's reporting unit, chosen as for laws with the limited part as the left side. */
+    private final Map<String, Unit> limitUnits = new LinkedHashMap<>();
     private final List<Declaration.Variable> inputs = new ArrayList<>();
     private final List<Declaration.Variable> outputs = new ArrayList<>();
     private final Map<String, Integer> inputOffsets = new LinkedHashMap<>();
@@ -52,6 +56,14 @@ public final class LawSet {
                 lawUnits.put(law.name(), declaredUnit.of(law, lawInfo.get(law.name()).unit()));
             }
         }
+        this.limitInfo = Collections.unmodifiableMap(new LinkedHashMap<>(checker.limits));
+        for (Declaration.Limit limit : filter(Declaration.Limit.class)) {
+            // the limited part is the middle of a chain, else the left part; the unit is preferably its own
+            List<Expr> parts = limit.parts();
+            Declaration.Law sides = limit.twoSided() ? new Declaration.Law(limit.name(), parts.get(1), parts.get(0))
+                    : new Declaration.Law(limit.name(), parts.get(0), parts.get(1));
+            limitUnits.put(limit.name(), declaredUnit.of(sides, limitInfo.get(limit.name()).unit()));
+        }
         for (Declaration d : declarations) {
             if (d instanceof Declaration.Variable v) {
                 boolean in = v.role() == Declaration.Role.INPUT;
@@ -68,7 +80,9 @@ public final class LawSet {
         TermPool pool = new TermPool(all.toArray(new String[0]));
         Expander expander = new Expander(this, pool);
         try {
-            this.expanded = new ExpandedLaws(this, pool, expander.expand(), all.toArray(new String[0]), expander);
+            List<Expander.ScalarLaw> scalarLaws = expander.expand();
+            List<ScalarLimit> limits = new LimitAnalysis(this, places, diagnostics).analyse(expander.limits());
+            this.expanded = new ExpandedLaws(this, pool, scalarLaws, limits, all.toArray(new String[0]), expander);
         } catch (TermPool.TooLarge tooLarge) {
             diagnostics.error(new Span(0, 0), "the laws expand into more than " + Limits.MAX_SCALAR_NODES
                     + " scalar expression nodes; use fewer or shorter vector laws");
@@ -241,6 +255,11 @@ public final class LawSet {
         return filter(Declaration.Law.class);
     }
 
+    /** @return the limits in declaration order */
+    public List<Declaration.Limit> limits() {
+        return filter(Declaration.Limit.class);
+    }
+
     /** @return the {@code complete} statement, when there is one */
     public Optional<Declaration.Completion> completion() {
         List<Declaration.Completion> c = filter(Declaration.Completion.class);
@@ -368,6 +387,32 @@ public final class LawSet {
         Checker.LawInfo info = lawInfo.get(name);
         if (info == null) {
             throw new IllegalArgumentException("no law named '" + name + "'");
+        }
+        return info.shape();
+    }
+
+    /**
+     * @return the unit the scalar limits of limit {@code name} are reported in, chosen as {@link #lawUnit} chooses a
+     *         law's with the limited part (the middle of {@code lo <= e <= hi}, else the left part) as the left side
+     * @throws IllegalArgumentException when there is no limit of that name
+     */
+    public Unit limitUnit(String name) {
+        Unit unit = limitUnits.get(name);
+        if (unit == null) {
+            throw new IllegalArgumentException("no limit named '" + name + "'");
+        }
+        return unit;
+    }
+
+    /**
+     * @return the number of elements of limit {@code name}: 0 for a scalar limit, k for a vector limit of length k
+     *         (a two-sided limit has two scalar limits per element)
+     * @throws IllegalArgumentException when there is no limit of that name
+     */
+    public int limitShape(String name) {
+        Checker.LawInfo info = limitInfo.get(name);
+        if (info == null) {
+            throw new IllegalArgumentException("no limit named '" + name + "'");
         }
         return info.shape();
     }

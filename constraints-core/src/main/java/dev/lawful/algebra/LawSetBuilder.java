@@ -15,6 +15,7 @@ import java.util.List;
  *     .output("out", 6, "mol/s")
  *     .constant("C", new double[] {1, 0, 1, 1, 0, 0}, "")
  *     .law("carbon", "sum(C * out) = sum(C * feed)")
+ *     .limitBetween("share", "0", "out", "feed")
  *     .complete("out[0]")
  *     .build();
  * }</pre>
@@ -73,6 +74,28 @@ public final class LawSetBuilder {
     /** Declares a law {@code lhs = rhs}. */
     public LawSetBuilder law(String name, String lhs, String rhs) {
         return add("law " + name + ": " + lhs + " = " + rhs, name, lhs + rhs);
+    }
+
+    /** Declares a limit from one inequality: {@code "P >= 0"}, {@code "T <= T_max"} or {@code "0 <= x <= cap"}. */
+    public LawSetBuilder limit(String name, String inequality) {
+        return add("limit " + name + ": " + inequality, name, inequality);
+    }
+
+    /**
+     * Declares a limit {@code left relation right}.
+     *
+     * @param relation {@code "<="} or {@code ">="}; anything else is an error of {@link #build()}
+     */
+    public LawSetBuilder limit(String name, String left, String relation, String right) {
+        if (!relation.equals("<=") && !relation.equals(">=")) {
+            problems.add((lines.size() + 1) + ":a limit's relation is '<=' or '>=', found '" + relation + "'");
+        }
+        return add("limit " + name + ": " + left + " " + relation + " " + right, name, left, relation, right);
+    }
+
+    /** Declares a two-sided limit {@code low <= expression <= high}. */
+    public LawSetBuilder limitBetween(String name, String low, String expression, String high) {
+        return add("limit " + name + ": " + low + " <= " + expression + " <= " + high, name, low, expression, high);
     }
 
     /** Names the completed outputs: whole outputs, elements {@code out[2]} or slices {@code out[0:3]}. */

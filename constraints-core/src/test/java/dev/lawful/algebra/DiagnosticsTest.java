@@ -38,7 +38,9 @@ class DiagnosticsTest {
             "law-without-output", "unit-mismatch-sum", "unit-mismatch-sides", "unknown-unit", "ambiguous-unit",
             "used-before-declaration", "complete-input", "completed-twice", "two-complete", "wrong-argument-count",
             "number-glued-to-name", "unexpected-character", "deep-nesting", "several-errors", "tab-indented",
-            "long-line");
+            "long-line", "limit-unit-mismatch", "limit-chain-unit-mismatch", "limit-without-output",
+            "limit-not-affine", "limit-contradiction", "limit-empty-range", "limit-duplicate-name",
+            "limit-mixed-relations", "law-with-inequality");
 
     private static Path directory() {
         URL url = DiagnosticsTest.class.getResource("/diagnostics");
