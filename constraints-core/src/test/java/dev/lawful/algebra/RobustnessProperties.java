@@ -85,7 +85,21 @@ class RobustnessProperties {
             "complete y, z",
             "");
 
-    private static final List<String> VALID = List.of(REFORMER, HEAT, MIXED);
+    private static final String BOUNDED = String.join("\n",
+            "input  feed[3] mol/s",
+            "input  dt s",
+            "output out[3]  mol/s",
+            "output q[3]    mol",
+            "output T       K",
+            "const  T_max = 400 K",
+            "law    total: sum(out) = sum(feed)",
+            "limit  dry:   q + out * dt >= 0",
+            "limit  share: 0 <= out <=",
+            "              feed",
+            "limit  cap:   T_max >= T >= 0",
+            "");
+
+    private static final List<String> VALID = List.of(REFORMER, HEAT, MIXED, BOUNDED);
 
     /**
      * Fragments that mutations insert: tokens of the language, near-misses, units and hostile characters. Vector
@@ -98,7 +112,8 @@ class RobustnessProperties {
             "1e-400", "0", "007", "1.", ".5", "1e", "NaN", "Infinity", "kJ", "m^64", "m^65", "m^-2", "J/(kg K)",
             "J/kg K", "degC", "\u00b5s", "\u00b0", "\u03a9", "\u00b7", "\u0000", "\uFFFD", "\uD83D\uDE00", "\uD800", "$",
             "\"", "'", "\\", "@", "{", "}", ";", "?", "!", "&&", "System.exit(1)", "99999999999999999999", "law:",
-            ": :", "= =", "^^", "--", "[[", "]]", "((", "))");
+            ": :", "= =", "^^", "--", "[[", "]]", "((", "))", "limit ", "<=", ">=", "<", ">", "=<", "<==",
+            "\u2264");
 
     // ---- properties ------------------------------------------------------------------------------------------
 
@@ -344,6 +359,31 @@ class RobustnessProperties {
         LawException e = rejects(HEAD + "law l: y = " + "-".repeat(100_000) + "x\n");
         assertTrue(mentions(e, "nested deeper than the limit"), e.getMessage());
         rejects(HEAD + "law l: y = " + "-(".repeat(50_000) + "x" + ")".repeat(50_000) + "\n");
+    }
+
+    @Test
+    void hostileLimits() {
+        String head = "input x\noutput y\n";
+        assertTrue(mentions(rejects(head + "limit l: y <= x" + " <= x".repeat(100_000) + "\n"), "another '<='"));
+        rejects(head + "limit l: y" + " <=".repeat(100_000) + "\n");
+        rejects(head + "limit l: y >= " + "(".repeat(100_000) + "x" + ")".repeat(100_000) + "\n");
+        rejects(head + "limit l: y >= x" + " + x".repeat(100_000) + "\n");
+        rejects(head + "limit l: " + "-".repeat(100_000) + "y <= x\n");
+        rejects(head + "limit l: y <= (x\nlimit m: y >=");
+        rejects(head + "limit l: y <=");
+        rejects(head + "limit l:");
+        rejects(head + "limit");
+        rejects(head + "limit l: y < x\nlimit m: y > x\nlimit n: y =< x\nlimit o: y <== x\n");
+        rejects(head + "limit l: y \u2264 x\n");
+        rejects(head + "limit l: (y <= x)\nlimit m: [y <= x]\nlimit n: exp(y >= x) >= 0\n");
+        rejects(head + "limit l: y >= 1e309\nlimit m: y * y >= x\nlimit n: 1 <= y <= 0\n");
+        rejects("input x\noutput y[100000]\nlimit l: y * y >= x\n");
+        StringBuilder many = new StringBuilder(head);
+        for (int i = 0; i < 2_000; i++) {
+            many.append("limit l").append(i).append(": y >= ").append(i).append('\n');
+            many.append("limit u").append(i).append(": y <= ").append(-i).append('\n');
+        }
+        rejects(many.toString());
     }
 
     @Test
