@@ -11,7 +11,9 @@ import java.util.List;
  *
  * <p>A valid file gives {@code file}, {@code valid: true}, {@code inputs}, {@code outputs}, {@code constants} (each
  * a list of {@code {name, length, unit}}), {@code definitions} ({@code {name, length, expression}}), {@code laws}
- * ({@code {name, unit, length, outputs}}), {@code tier} (how the laws are solved: {@code constant-affine},
+ * ({@code {name, unit, length, outputs}}), {@code limits} ({@code {name, unit, length, inequality, outputs}}, a
+ * length counting scalar limits: two per element of a two-sided limit), {@code tier} (how the laws are solved:
+ * {@code constant-affine},
  * {@code affine} or {@code nonlinear}), {@code condition} (the 2-norm condition number of the equilibrated dC/dy_completed at the
  * completion's reference point), {@code completed} (the completed output elements, from the {@code complete}
  * statement or else the automatic choice, in solve order), {@code free} (the other output elements) and
@@ -49,6 +51,14 @@ final class JsonReport {
         for (LawSummary.Law l : s.laws()) {
             json.beginObject().name("name").value(l.name()).name("unit").value(l.unit().text())
                     .name("length").value(l.length());
+            strings(json.name("outputs"), l.outputs());
+            json.endObject();
+        }
+        json.endArray();
+        json.name("limits").beginArray();
+        for (LawSummary.Limit l : s.limits()) {
+            json.beginObject().name("name").value(l.name()).name("unit").value(l.unit().text())
+                    .name("length").value(l.length()).name("inequality").value(l.inequality());
             strings(json.name("outputs"), l.outputs());
             json.endObject();
         }

@@ -5,6 +5,7 @@ import dev.lawful.algebra.Diagnostic;
 import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.ExprPrinter;
 import dev.lawful.algebra.LawSet;
+import dev.lawful.algebra.ScalarLimit;
 import dev.lawful.algebra.Unit;
 import dev.lawful.enforce.Completion;
 import dev.lawful.enforce.Tier;
@@ -26,6 +27,7 @@ import java.util.TreeSet;
  * @param constants   the constants in declaration order
  * @param definitions the definitions in declaration order
  * @param laws        the laws in declaration order
+ * @param limits      the limits in declaration order
  * @param outputWidth the number of output elements
  * @param completed   the completed output elements, in the order the completion solves for them ({@code name} or
  *                    {@code name[i]}); empty when the file has no laws
@@ -39,7 +41,7 @@ import java.util.TreeSet;
  * @param warnings    the checker's warnings
  */
 record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item> constants,
-                  List<Definition> definitions, List<Law> laws, int outputWidth, List<String> completed,
+                  List<Definition> definitions, List<Law> laws, List<Limit> limits, int outputWidth, List<String> completed,
                   List<String> free, boolean hasCompletion, String tier, double condition,
                   List<String> completionWarnings, List<Diagnostic> warnings) {
 
@@ -75,8 +77,22 @@ record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item>
     record Law(String name, Unit unit, int length, List<String> outputs) {
     }
 
+    /**
+     * A declared limit.
+     *
+     * @param name       its name
+     * @param unit       the unit its values g are reported in
+     * @param length     its number of scalar limits: 1 for a scalar one-sided limit, k for a vector limit of length
+     *                   k, twice that for a two-sided one
+     * @param outputs    the output elements any of its scalar limits involves, in output order
+     * @param inequality the limit as law text, without its name ({@code 0 <= out <= feed})
+     */
+    record Limit(String name, Unit unit, int length, List<String> outputs, String inequality) {
+    }
+
     // copy every list, so a summary never changes after it is made
     LawSummary {
+        limits = List.copyOf(limits);
         inputs = List.copyOf(inputs);
         outputs = List.copyOf(outputs);
         constants = List.copyOf(constants);
@@ -134,12 +150,42 @@ record LawSummary(String file, List<Item> inputs, List<Item> outputs, List<Item>
             laws.add(new Law(l.name(), set.lawUnit(l.name()), Math.max(1, set.lawShape(l.name())), names));
         }
 
+        List<Limit> limits = limits(set, expanded);
         List<String> completed = completion == null ? List.of() : completion.completedNames();
         List<String> free = completion == null ? outputNames : completion.freeNames();
-        return new LawSummary(file, inputs, outputs, constants, definitions, laws, outputNames.size(), completed,
+        return new LawSummary(file, inputs, outputs, constants, definitions, laws, limits, outputNames.size(), completed,
                 free, set.completion().isPresent(), completion == null ? null : completion.tier().label(),
                 completion == null ? Double.NaN : completion.condition(),
                 completion == null ? List.of() : completion.warnings(), set.warnings());
+    }
+
+    private static List<Limit> limits(LawSet set, ExpandedLaws expanded) {
+        Map<String, Set<Integer>> involved = new LinkedHashMap<>();
+        Map<String, Integer> counts = new LinkedHashMap<>();
+        for (int j = 0; j < expanded.limitCount(); j++) {
+            ScalarLimit l = expanded.limit(j);
+            Set<Integer> elements = involved.computeIfAbsent(l.declaration().name(), k -> new TreeSet<>());
+            for (int k : l.outputs()) {
+                elements.add(k);
+            }
+            counts.merge(l.declaration().name(), 1, Integer::sum);
+        }
+        List<Limit> limits = new ArrayList<>();
+        for (Declaration.Limit l : set.limits()) {
+            List<String> names = new ArrayList<>();
+            for (int k : involved.getOrDefault(l.name(), Set.of())) {
+                names.add(set.outputNames().get(k));
+            }
+            String text = l.text();
+            limits.add(new Limit(l.name(), set.limitUnit(l.name()), counts.getOrDefault(l.name(), 0), names,
+                    text.substring(text.indexOf(": ") + 2)));
+        }
+        return limits;
+    }
+
+    /** @return the number of scalar limits of all limits together */
+    int scalarLimits() {
+        return limits.stream().mapToInt(Limit::length).sum();
     }
 
     /** @return the number of scalar equations of all laws together */

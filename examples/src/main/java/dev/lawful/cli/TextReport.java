@@ -16,6 +16,8 @@ import java.util.List;
  * ...
  * laws          length  unit  outputs
  *   balance          3  kW    T[0], T[1], T[2]
+ * limits        length  unit  outputs      (only when the file has limits)
+ *   cold             3  K     T[0], T[1], T[2]
  *
  * completed     T[0], T[1], T[2]  (3 of 5 output elements)
  * free          a, b
@@ -58,6 +60,11 @@ final class TextReport {
             length = Math.max(length, Integer.toString(l.length()).length());
             unit = Math.max(unit, width(l.unit().display()));
         }
+        for (LawSummary.Limit l : s.limits()) {
+            name = Math.max(name, INDENT.length() + width(l.name()));
+            length = Math.max(length, Integer.toString(l.length()).length());
+            unit = Math.max(unit, width(l.unit().display()));
+        }
         this.nameWidth = name;
         this.lengthWidth = length;
         this.unitWidth = unit;
@@ -75,7 +82,9 @@ final class TextReport {
 
     private void print(PrintWriter out) {
         String header = s.file() + ": valid (" + count(s.laws().size(), "law") + ", "
-                + count(s.equations(), "scalar equation") + ", " + count(s.outputWidth(), "output element")
+                + count(s.equations(), "scalar equation") + ", "
+                + (s.limits().isEmpty() ? "" : count(s.scalarLimits(), "scalar limit") + ", ")
+                + count(s.outputWidth(), "output element")
                 + (s.warnings().isEmpty() ? "" : ", " + count(s.warnings().size(), "warning")) + ")";
         out.println(header);
         items(out, "inputs", s.inputs());
@@ -105,6 +114,8 @@ final class TextReport {
             }
         }
 
+        limits(out);
+
         out.println();
         String completed = pad("completed", nameWidth) + GAP;
         if (s.tier() == null) {
@@ -122,6 +133,20 @@ final class TextReport {
         }
         out.println(pad("tier", nameWidth) + GAP + s.tier() + ", condition number "
                 + LawSummary.threeDigits(s.condition()) + " (equilibrated)");
+    }
+
+    /** A file without limits shows no limits section, so reports of law-only files stay as they were. */
+    private void limits(PrintWriter out) {
+        if (s.limits().isEmpty()) {
+            return;
+        }
+        out.println();
+        out.println(row("limits", "length", pad("unit", unitWidth) + GAP + "outputs"));
+        for (LawSummary.Limit l : s.limits()) {
+            String prefix = row(INDENT + l.name(), Integer.toString(l.length()), pad(l.unit().display(), unitWidth))
+                    + GAP;
+            wrap(out, prefix, l.outputs(), "");
+        }
     }
 
     private void items(PrintWriter out, String title, List<LawSummary.Item> items) {

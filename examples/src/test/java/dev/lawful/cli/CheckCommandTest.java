@@ -121,8 +121,9 @@ class CheckCommandTest {
         assertEquals(0, r.code(), r.err());
         assertEquals("", r.err());
         Map<String, Object> doc = object(Json.parse(r.out()));
-        assertEquals(Set.of("file", "valid", "inputs", "outputs", "constants", "definitions", "laws", "tier",
-                "condition", "completed", "free", "warnings"), doc.keySet());
+        assertEquals(Set.of("file", "valid", "inputs", "outputs", "constants", "definitions", "laws", "limits",
+                "tier", "condition", "completed", "free", "warnings"), doc.keySet());
+        assertEquals(List.of(), doc.get("limits"));
         assertEquals(file.toString(), doc.get("file"));
         assertEquals(Boolean.TRUE, doc.get("valid"));
 
@@ -461,6 +462,39 @@ class CheckCommandTest {
             Captured text = LawfulTest.run(cs, "check", file.toString());
             assertTrue(text.out().lines().anyMatch(l -> l.matches("  x +1  \u00b5m")), text.out());
         }
+    }
+
+    private static final String LIMITED = String.join("\n",
+            "input  feed_total mol/s",
+            "output out[2] mol/s",
+            "output P W",
+            "law    split: sum(out) = feed_total",
+            "limit  share: 0 <= out <= feed_total",
+            "limit  rain: P >= 0",
+            "");
+
+    @Test
+    void limitsAreListedWithLengthUnitAndOutputs() throws IOException {
+        Path file = write("limited.law", LIMITED);
+        Captured r = run("check", file.toString());
+        assertEquals(0, r.code(), r.err());
+        List<String> lines = r.out().lines().toList();
+        assertEquals(file + ": valid (1 law, 1 scalar equation, 5 scalar limits, 3 output elements)", lines.get(0));
+        assertEquals("  share            4  mol/s  out[0], out[1]", assertRow(lines, "limits", "share", "4", "mol/s"));
+        assertEquals("  rain             1  W      P", assertRow(lines, "limits", "rain", "1", "W"));
+        Map<String, Object> doc = object(Json.parse(run("check", "--json", file.toString()).out()));
+        List<Object> limits = list(doc.get("limits"));
+        assertEquals(2, limits.size());
+        assertEquals(Map.of("name", "share", "unit", "mol/s", "length", 4.0, "inequality", "0 <= out <= feed_total",
+                "outputs", List.of("out[0]", "out[1]")), limits.get(0));
+        assertEquals(Map.of("name", "rain", "unit", "W", "length", 1.0, "inequality", "P >= 0",
+                "outputs", List.of("P")), limits.get(1));
+    }
+
+    @Test
+    void aLawFileWithoutLimitsShowsNoLimitsSection() throws IOException {
+        Captured r = run("check", example("steam-reformer.law").toString());
+        assertFalse(r.out().lines().anyMatch(l -> l.startsWith("limits")), r.out());
     }
 
     @Test
