@@ -27,10 +27,12 @@ import picocli.CommandLine.Spec;
  * verdict that names the worst line of the file for each law over the tolerance, or with {@code --json} as one
  * JSON object: {@code file}, {@code data}, {@code ignoredColumns}, {@code report} (the form of
  * {@link ResidualReport#writeJson}) and {@code worst} (for each scalar law, {@code {law, line}}: the line of the
- * file with the largest relative residual, null without samples).
+ * file with the largest relative residual, null without samples). A file with limits adds, per scalar limit, the
+ * rows outside it (its value g below 0, or NaN: limits have no tolerance) and the smallest g in the limit's unit
+ * with its line ({@link LimitCheck}; {@code limits} in JSON).
  *
  * <p>Exit status: {@value Lawful#EXIT_OK} every sample within tolerance for every law; {@value Lawful#EXIT_INVALID}
- * some relative residual over the tolerance (or NaN), or errors in the law file; {@value Lawful#EXIT_USAGE} usage
+ * some relative residual over the tolerance (or NaN), a row outside a limit, or errors in the law file; {@value Lawful#EXIT_USAGE} usage
  * error, a file that cannot be read, or a CSV problem (missing or misnamed column, row of the wrong length, value
  * that is not a number, no data rows), each with its line number.
  */
@@ -43,7 +45,10 @@ import picocli.CommandLine.Spec;
                     + "natural scale, the rows over the tolerance, NaN or infinite residuals, and a histogram of the "
                     + "relative residual by decade.",
             "The CSV header names every input and output element (name or name[i]) in any order; other columns are "
-                    + "ignored with a note. Lines starting with # are comments."},
+                    + "ignored with a note. Lines starting with # are comments.",
+            "For a law file with limits, it also reports for each scalar limit the rows outside it (g < 0, or NaN; "
+                    + "limits have no tolerance) and the worst value in the limit's unit; a row outside a limit gives "
+                    + "exit status 1."},
         exitCodeListHeading = "%nExit status:%n",
         exitCodeList = {
             "0:every row obeys every law within the tolerance",
@@ -111,6 +116,7 @@ public final class VerifyCommand implements Callable<Integer> {
         double[] x = table.gather(laws.inputNames());
         double[] y = table.gather(laws.outputNames());
         ResidualReport report = ResidualReport.of(laws, x, y, rows, tolerance);
+        LimitCheck limits = laws.expand().limitCount() == 0 ? null : LimitCheck.of(laws.expand(), x, y, table);
         if (json) {
             JsonWriter w = JsonWriter.pretty(out);
             w.beginObject().name("file").value(file.toString()).name("data").value(in.toString());
@@ -130,13 +136,21 @@ public final class VerifyCommand implements Callable<Integer> {
                 }
                 w.endObject();
             }
-            w.endArray().endObject();
+            w.endArray();
+            if (limits != null) {
+                limits.writeJson(w.name("limits"));
+            }
+            w.endObject();
             out.println();
         } else {
             out.println(file + ": " + rows + (rows == 1 ? " row" : " rows") + " of " + in);
             out.println();
             out.print(report.toTable(k -> "line " + table.line(k)));
+            if (limits != null) {
+                limits.print(out, rows);
+            }
         }
-        return report.withinTolerance() ? Lawful.EXIT_OK : Lawful.EXIT_INVALID;
+        boolean inside = limits == null || limits.allInside();
+        return report.withinTolerance() && inside ? Lawful.EXIT_OK : Lawful.EXIT_INVALID;
     }
 }

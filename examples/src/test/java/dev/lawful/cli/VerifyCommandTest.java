@@ -3,6 +3,7 @@ package dev.lawful.cli;
 import dev.lawful.algebra.Names;
 import static dev.lawful.cli.LawfulTest.run;
 import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.lawful.cli.LawfulTest.Captured;
@@ -52,6 +53,54 @@ class VerifyCommandTest {
     }
 
     // ---- verdicts ------------------------------------------------------------------------------------------
+
+    private static final String LIMITED = String.join("\n",
+            "input  feed mol/s",
+            "output out[2] mol/s",
+            "output P kW",
+            "law    split: sum(out) = feed",
+            "limit  share: 0 <= out <= feed",
+            "limit  rain: P >= 0",
+            "");
+
+    @Test
+    void rowsInsideEveryLimitPassAndEachLimitIsReported() throws IOException {
+        Path file = write("limited.law", LIMITED);
+        Path data = write("full.csv", "feed,out[0],out[1],P\n3,1,2,0\n4,4,0,0.5\n");
+        Captured r = run("verify", file.toString(), "--in", data.toString());
+        assertEquals(0, r.code(), r.out() + r.err());
+        List<String> lines = r.out().lines().toList();
+        assertTrue(lines.contains("  rain: every row inside, smallest g 0 kW"), r.out());
+        assertTrue(lines.contains("  share[0] (upper): every row inside, smallest g 0 mol/s"), r.out());
+    }
+
+    @Test
+    void aRowOutsideALimitIsExitOneWithTheWorstValueAndItsLine() throws IOException {
+        Path file = write("limited.law", LIMITED);
+        // both rows obey the law split exactly; line 3 has P = -2.5 kW and out[1] = -1 mol/s
+        Path data = write("full.csv", "feed,out[0],out[1],P\n3,1,2,-0.5\n3,4,-1,-2.5\n");
+        Captured r = run("verify", file.toString(), "--in", data.toString());
+        assertEquals(1, r.code(), r.out() + r.err());
+        List<String> lines = r.out().lines().toList();
+        assertTrue(lines.contains("  rain: 2 of 2 rows outside, worst g -2.5 kW at line 3"), r.out());
+        assertTrue(lines.contains("  share[1] (lower): 1 of 2 rows outside, worst g -1 mol/s at line 3"), r.out());
+        assertTrue(lines.contains("  share[0] (upper): 1 of 2 rows outside, worst g -1 mol/s at line 3"), r.out());
+        Map<String, Object> doc = object(CheckCommandTest.Json.parse(run("verify", file.toString(), "--in", data.toString(),
+                "--json").out()));
+        List<Object> limits = list(doc.get("limits"));
+        assertEquals(5, limits.size());
+        assertEquals(Map.of("limit", "rain", "unit", "kW", "outside", 2.0, "worst", -2.5, "line", 3.0),
+                limits.get(4));
+        assertEquals(Map.of("limit", "share[0] (lower)", "unit", "mol/s", "outside", 0.0, "worst", 1.0, "line", 2.0),
+                limits.get(0));
+    }
+
+    @Test
+    void aFileWithoutLimitsHasNoLimitsInItsReport() throws IOException {
+        Path data = write("full.csv", HEADER + "\n" + ROW1 + "\n");
+        Captured r = run("verify", reformer(), "--in", data.toString(), "--json");
+        assertFalse(object(CheckCommandTest.Json.parse(r.out())).containsKey("limits"), r.out());
+    }
 
     @Test
     void balancedRowsPassAndTheReportStartsWithTheFiles() throws IOException {
