@@ -6,6 +6,7 @@ import dev.lawful.enforce.plan.CompletionPlanner;
 import dev.lawful.enforce.plan.ReferencePoint;
 import dev.lawful.enforce.solve.Columns;
 import dev.lawful.enforce.solve.FailureReport;
+import dev.lawful.enforce.solve.LimitStep;
 import dev.lawful.enforce.solve.TierSolver;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -80,6 +81,8 @@ public final class Completion {
     public static final class Workspace {
         private final Completion owner;
         private final TierSolver solver;
+        /** Keeps samples inside the limits, or null when the law set has none. */
+        private final LimitStep limitStep;
         private int capacity;
         private double[] x;
         private double[] z;
@@ -94,6 +97,8 @@ public final class Completion {
         private Workspace(Completion owner) {
             this.owner = owner;
             this.solver = TierSolver.create(owner.plan, owner.columns);
+            this.limitStep = owner.plan.limits() == null ? null : new LimitStep(owner.plan,
+                    TierSolver.create(owner.plan, owner.columns));
         }
 
         private void ensure(int batch) {
@@ -125,6 +130,7 @@ public final class Completion {
         private int maxIterations = 50;
         private double[] xRef;
         private double[] yRef;
+        private double[] limitScales;
 
         private Builder(LawSet laws) {
             this.laws = laws;
@@ -183,6 +189,20 @@ public final class Completion {
         }
 
         /**
+         * The metric in which a sample outside a limit is moved: the free outputs change so that
+         * Σ_o ((y*_o − y_o)/size_o)², over all outputs, free and completed, is least while laws and limits hold.
+         * Pass the sizes the loss sees (a normalizer's standard deviations) so the move is the smallest one in the
+         * loss's terms. Default: 1 of each output's declared unit.
+         *
+         * @param sizes one positive, finite size per output element, in its declared unit (copied)
+         * @return this builder
+         */
+        public Builder limitScales(double... sizes) {
+            this.limitScales = sizes.clone();
+            return this;
+        }
+
+        /**
          * @return the completion
          * @throws dev.lawful.algebra.LawException when the choice is impossible: wrong number of completed outputs,
          *         an output no law involves, dependent (redundant or contradictory) laws, a singular block, or a
@@ -195,7 +215,7 @@ public final class Completion {
                 reference = ReferencePoint.of(laws, xRef, yRef);
             }
             return new Completion(this, CompletionPlanner.plan(laws, new CompletionPlanner.Request(completedNames,
-                    automatic, allowed, maxIterations, reference)));
+                    automatic, allowed, maxIterations, reference, limitScales)));
         }
     }
 
@@ -353,6 +373,9 @@ public final class Completion {
         double[] full = layout == Layout.DECLARED && y != x && y != z ? y : ws.y;
         byte[] st = ws.status;
         ws.solver.forward(x, z, batch, full, st, check == BoundCheck.EVERY_SAMPLE);
+        if (ws.limitStep != null) {
+            ws.limitStep.apply(x, batch, full, st);
+        }
         if (policy == OnBadSample.THROW) {
             for (int s = 0; s < batch; s++) {
                 if (st[s] != SampleStatus.OK) {
@@ -438,6 +461,9 @@ public final class Completion {
             g = ws.g;
             columns.fromFreeFirst(batch, y, full);
             columns.fromFreeFirst(batch, gradOut, g);
+        }
+        if (ws.limitStep != null) {
+            ws.limitStep.refuseGradientOnLimits(x, batch, full);
         }
         int singular = ws.solver.backward(x, batch, full, g, gradZ, gradX, policy == OnBadSample.THROW);
         if (singular >= 0) {

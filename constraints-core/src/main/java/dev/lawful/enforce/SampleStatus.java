@@ -13,6 +13,8 @@ public final class SampleStatus {
     public static final byte SINGULAR = 2;
     /** Newton reached its iteration cap before the residuals reached rounding level. */
     public static final byte NOT_CONVERGED = 3;
+    /** No outputs satisfy both the laws and the limits at this sample (or the limit step did not reach them). */
+    public static final byte OUTSIDE_LIMITS = 4;
 
     private SampleStatus() {
     }
@@ -24,6 +26,7 @@ public final class SampleStatus {
             case NOT_FINITE: return "non-finite input";
             case SINGULAR: return "singular system";
             case NOT_CONVERGED: return "Newton did not converge";
+            case OUTSIDE_LIMITS: return "outside limits";
             default: return "unknown status " + status;
         }
     }

@@ -6,6 +6,7 @@ import dev.lawful.enforce.BoundCheck;
 import dev.lawful.enforce.Completion;
 import dev.lawful.enforce.OnBadSample;
 import java.util.Arrays;
+import java.util.List;
 import java.util.Objects;
 
 /**
@@ -144,6 +145,7 @@ public final class LawSpec implements java.io.Serializable {
     public Completion completion() {
         Completion c = completion;
         if (c == null) {
+            refuseLimits(lawSet());
             Completion.Builder b = Completion.builder(lawSet())
                     .onBadSample(maskBadSamples ? OnBadSample.MASK : OnBadSample.THROW);
             if (completed != null) {
@@ -153,6 +155,20 @@ public final class LawSpec implements java.io.Serializable {
             completion = c;
         }
         return c;
+    }
+
+    /**
+     * The layers cannot train through limits yet (the gradient on an active limit is not available), and a layer
+     * that silently ignored them would hand out outputs outside them: a law set with limits is refused by name.
+     */
+    private static void refuseLimits(LawSet laws) {
+        if (!laws.limits().isEmpty()) {
+            List<String> names = laws.limits().stream().map(l -> "'" + l.name() + "'").toList();
+            throw laws.problem(laws.limits().get(0), "the law set declares limits (" + String.join(", ", names)
+                    + "); the Deeplearning4j layers do not enforce limits yet: train with a law file without the limit"
+                    + " statements, and keep outputs inside the limits at inference with Completion.forward or lawful"
+                    + " complete on the same law file with its limits");
+        }
     }
 
     @Override

@@ -39,6 +39,37 @@ class CompleteCommandTest {
     // ---- the shipped example -------------------------------------------------------------------------------
 
     @Test
+    void limitsKeepEveryOutletFlowNonNegativeAndVerifyAgrees() throws IOException {
+        // a predicted CH4 outflow of 0.95 mol/s leaves the carbon balance a CO outflow of 1.05 − 0.95 − 0.35 < 0
+        Path in = write("in.csv", "feed[0],feed[1],feed[2],feed[3],feed[4],feed[5],T,out[0],out[3]\n"
+                + "1,3,0,0.05,0.02,0.01,900,0.95,0.35\n1,3,0,0.05,0.02,0.01,900,0.4,0.35\n");
+        Path plain = temp.resolve("plain.csv");
+        assertEquals(0, run("complete", reformer(), "--in", in.toString(), "--out", plain.toString()).code());
+        List<String> plainRows = Files.readAllLines(plain);
+        String header = plainRows.stream().filter(l -> l.startsWith("feed[0]")).findFirst().orElseThrow();
+        int co = List.of(header.split(",")).indexOf("out[2]");
+        List<String> plainData = plainRows.stream().filter(l -> !l.startsWith("#") && !l.startsWith("feed")).toList();
+        assertTrue(Double.parseDouble(plainData.get(0).split(",")[co]) < 0, plainData.get(0));
+
+        String limited = ExampleFiles.law("steam-reformer-limits.law").toString();
+        Path full = temp.resolve("limited.csv");
+        Captured c = run("complete", limited, "--in", in.toString(), "--out", full.toString());
+        assertEquals(0, c.code(), c.err());
+        List<String> rows = Files.readAllLines(full).stream().filter(l -> !l.startsWith("#") && !l.startsWith("feed"))
+                .toList();
+        for (String row : rows) {
+            String[] cells = row.split(",");
+            for (int k = 7; k < cells.length; k++) {
+                assertTrue(Double.parseDouble(cells[k]) >= 0, row);
+            }
+        }
+        // the second row was inside every limit: written exactly as without limits
+        assertEquals(plainData.get(1), rows.get(1));
+        Captured v = run("verify", limited, "--in", full.toString());
+        assertEquals(0, v.code(), v.out() + v.err());
+    }
+
+    @Test
     void completeThenVerifyRoundTripsTheShippedExample() throws IOException {
         Path free = ExampleFiles.data("reformer-free.csv");
         Path full = temp.resolve("reformer-full.csv");

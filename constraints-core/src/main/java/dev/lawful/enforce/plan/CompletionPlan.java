@@ -26,10 +26,11 @@ import java.util.List;
  * @param fold          the constant-affine fold, or null for the other tiers
  * @param start         Newton's starting values
  * @param maxIterations Newton's iteration cap
+ * @param limits        the limits, or null when the law set has none
  */
 public record CompletionPlan(LawSet laws, ExpandedLaws expanded, LawEvaluator evaluator, Roles roles, Tier tier,
         double condition, List<String> warnings, int[] boundFactor, EntryMaps entries, Stages stages,
-        ConstantBlocks blocks, Fold fold, NewtonStart start, int maxIterations) {
+        ConstantBlocks blocks, Fold fold, NewtonStart start, int maxIterations, LimitPlan limits) {
 
     /** @return the number of scalar laws, which is the number of completed outputs */
     public int lawCount() {

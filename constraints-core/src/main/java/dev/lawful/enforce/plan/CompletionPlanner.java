@@ -5,6 +5,7 @@ import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.Expr;
 import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawSet;
+import dev.lawful.algebra.ScalarLimit;
 import dev.lawful.algebra.Term;
 import dev.lawful.enforce.Tier;
 import dev.lawful.enforce.linear.DenseLu;
@@ -34,9 +35,10 @@ public final class CompletionPlanner {
      * @param allowed        output elements the automatic choice may use, or null for all
      * @param maxIterations  Newton's iteration cap
      * @param reference      the reference point, or null for {@link ReferencePoint#generic(LawSet)}
+     * @param limitScales    per output, its typical size for the limits' metric, or null for 1 of each declared unit
      */
     public record Request(String[] completedNames, boolean automatic, String[] allowed, int maxIterations,
-            ReferencePoint reference) {
+            ReferencePoint reference, double[] limitScales) {
     }
 
     private final LawSet laws;
@@ -100,7 +102,40 @@ public final class CompletionPlanner {
         Fold fold = tier == Tier.CONSTANT_AFFINE
                 ? ConstantAffineFold.fold(evaluator, roles, entries, stages, blocks, choice.jacobian) : null;
         return new CompletionPlan(laws, expanded, evaluator, roles, tier, condition, List.copyOf(notes), boundFactor,
-                entries, stages, blocks, fold, start, request.maxIterations());
+                entries, stages, blocks, fold, start, request.maxIterations(), limits(request.limitScales()));
+    }
+
+    /** @return the limits of the law set, or null when it has none */
+    private LimitPlan limits(double[] scales) {
+        int m = expanded.limitCount();
+        if (m == 0) {
+            return null;
+        }
+        int p = laws.outputWidth();
+        if (scales != null && scales.length != p) {
+            throw new IllegalArgumentException("limitScales needs one size per output element (" + p + "), found "
+                    + scales.length);
+        }
+        double[] s = new double[p];
+        for (int o = 0; o < p; o++) {
+            s[o] = scales == null ? 1 : scales[o];
+            if (!(s[o] > 0) || Double.isInfinite(s[o])) {
+                throw new IllegalArgumentException("limitScales: the size of output " + laws.outputNames().get(o)
+                        + " must be positive and finite, found " + s[o]);
+            }
+        }
+        List<String> names = new ArrayList<>();
+        int[] single = new int[m];
+        double[] bound = new double[m];
+        boolean[] lower = new boolean[m];
+        for (int j = 0; j < m; j++) {
+            ScalarLimit l = expanded.limit(j);
+            names.add(l.name());
+            single[j] = Double.isFinite(l.bound()) ? l.singleOutput() : -1;
+            bound[j] = l.bound();
+            lower[j] = l.lower();
+        }
+        return new LimitPlan(expanded.limitEvaluator(), List.copyOf(names), single, bound, lower, s, 20);
     }
 
     /** @return the completed outputs: the request's, the law text's, or the automatic choice (with a note) */

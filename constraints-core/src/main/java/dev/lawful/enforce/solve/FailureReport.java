@@ -14,6 +14,7 @@ public final class FailureReport {
     private final String completedNames;
     private final Tier tier;
     private final int maxIterations;
+    private final String limitNames;
 
     /** @param plan the completion's plan */
     public FailureReport(CompletionPlan plan) {
@@ -30,6 +31,8 @@ public final class FailureReport {
         this.completedNames = String.join(", ", completed);
         this.tier = plan.tier();
         this.maxIterations = plan.maxIterations();
+        this.limitNames = plan.limits() == null ? ""
+                : String.join(", ", plan.limits().names().stream().map(l -> "'" + l + "'").toList());
     }
 
     /**
@@ -46,6 +49,9 @@ public final class FailureReport {
         switch (code) {
             case SampleStatus.NOT_FINITE:
                 return "an input or free output is NaN or infinite";
+            case SampleStatus.OUTSIDE_LIMITS:
+                return "no outputs satisfy both the laws and the limits " + limitNames + " (the limits conflict, given"
+                        + " the laws and this sample's inputs)";
             case SampleStatus.SINGULAR:
                 return "the laws " + quoted + " are singular in the completed outputs " + completedNames
                         + " at this sample (their Jacobian block has no inverse)"

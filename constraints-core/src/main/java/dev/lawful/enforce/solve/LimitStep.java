@@ -1,0 +1,376 @@
+package dev.lawful.enforce.solve;
+
+import dev.lawful.algebra.LawEvaluator;
+import dev.lawful.enforce.SampleStatus;
+import dev.lawful.enforce.linear.DenseLu;
+import dev.lawful.enforce.linear.DenseQp;
+import dev.lawful.enforce.plan.CompletionPlan;
+import dev.lawful.enforce.plan.LimitPlan;
+import java.util.Arrays;
+
+/**
+ * Keeps completed samples inside the limits g_j(x, y) ≥ 0. A sample whose completion already satisfies every limit
+ * is left as it is, bit for bit (one evaluation and one comparison per limit). Otherwise the free outputs move the
+ * least, in the plan's metric, so that laws and limits both hold: with J = dy_c/dz = −A⁻¹ ∂C/∂z at the current
+ * solution (the implicit function theorem) and G = dg/dy, the step solves the strictly convex quadratic programme
+ * <pre>  min ½ (u − z)ᵀ W (u − z)   s.t.   (G_f + G_c J) u ≥ (G_f + G_c J) z − g,   W = S_f + Jᵀ S_c J</pre>
+ * (S = diag(1/size²)) by the dual active-set method ({@link DenseQp}), then completes the laws exactly at u. When
+ * the completed outputs are affine in the free ones with coefficients that depend on the inputs only, the
+ * linearisation is exact and one step suffices; otherwise the step repeats, up to the plan's cap.
+ *
+ * <p>A limit on one output by a constant holds exactly: an output the step leaves within rounding of its limit
+ * is set to the limit itself (the laws then still hold to their bound, which is checked again). A limit on an
+ * expression holds to (3)·2⁻⁵³ of its natural scale. A sample for which no step reaches the limits gets
+ * {@link SampleStatus#OUTSIDE_LIMITS}. Not thread-safe: one per workspace.
+ */
+public final class LimitStep {
+    private static final double EPS = 0x1p-53;
+    /** Relative size below which a wrong-side free output counts as the projection's rounding and is snapped. */
+    private static final double SNAP = 1e-9;
+    /**
+     * Relative margin by which limits that are not on one free output are aimed inside: above the programme's
+     * feasibility tolerance, so the exact completion that follows lands inside rather than a rounding error outside.
+     */
+    private static final double MARGIN = 4 * DenseQp.DEFAULT_FEASIBILITY_TOLERANCE;
+
+    private final LimitPlan limits;
+    private final TierSolver solver;
+    private final LawEvaluator laws;
+    private final LawEvaluator evaluator;
+    private final Certifier certifier;
+    private final int[] entryLaw;
+    private final int[] entryRole;
+    private final int[] free;
+    private final int[] completed;
+    private final int n;
+    private final int k;
+    private final int m;
+    private final int p;
+    private final int nIn;
+    private final DenseQp qp;
+    private final SolveWork check;
+    private final LawEvaluator.Workspace lawWork;
+    private final LawEvaluator.Workspace limitWork;
+    private double[] g = new double[0];
+    private double[] gScale = new double[0];
+    private final double[] xs;
+    private final double[] zs;
+    private final double[] us;
+    private final double[] ys;
+    private final byte[] st1 = new byte[1];
+    private final double[] jy;
+    private final double[] gs;
+    private final double[] gsc;
+    private final double[] gjy;
+    private final double[] a;
+    private final int[] pivot;
+    private final double[] jz;
+    private final double[] rhs;
+    private final double[] aqp;
+    private final double[] bqp;
+    private final double[] magnitude;
+    private final double[] w;
+    private final double[] lambda;
+    private final int[] active;
+
+    /**
+     * @param plan   a plan with limits
+     * @param solver this workspace's solver of the plan's tier, used to complete a moved sample
+     */
+    public LimitStep(CompletionPlan plan, TierSolver solver) {
+        this.limits = plan.limits();
+        this.solver = solver;
+        this.laws = plan.evaluator();
+        this.evaluator = limits.evaluator();
+        this.certifier = new Certifier(plan);
+        this.entryLaw = plan.entries().entryLaw();
+        this.entryRole = plan.entries().entryRole();
+        this.free = plan.free();
+        this.completed = plan.completed();
+        this.n = plan.lawCount();
+        this.k = plan.freeWidth();
+        this.m = limits.count();
+        this.p = plan.outputWidth();
+        this.nIn = plan.inputWidth();
+        this.qp = new DenseQp(Math.max(1, k), m);
+        this.check = new SolveWork(plan, false);
+        check.ensure(1);
+        this.lawWork = laws.newWorkspace();
+        this.limitWork = evaluator.newWorkspace();
+        this.xs = new double[nIn];
+        this.zs = new double[k];
+        this.us = new double[k];
+        this.ys = new double[p];
+        this.jy = new double[laws.outputNonzeros()];
+        this.gs = new double[m];
+        this.gsc = new double[m];
+        this.gjy = new double[evaluator.outputNonzeros()];
+        this.a = new double[n * n];
+        this.pivot = new int[n];
+        this.jz = new double[n * k];
+        this.rhs = new double[n];
+        this.aqp = new double[m * k];
+        this.bqp = new double[m];
+        this.magnitude = new double[m];
+        this.w = new double[k * k];
+        this.lambda = new double[m];
+        this.active = new int[Math.max(1, Math.min(k, m))];
+    }
+
+    /**
+     * Moves every OK sample that is outside a limit.
+     *
+     * @param x     inputs, read only
+     * @param full  modified: the full rows of moved samples
+     * @param st    modified: OUTSIDE_LIMITS (or another failure) for samples that cannot be moved inside
+     * @return the number of samples moved
+     */
+    public int apply(double[] x, int batch, double[] full, byte[] st) {
+        if (g.length < batch * m) {
+            g = new double[batch * m];
+            gScale = new double[batch * m];
+        }
+        evaluator.residuals(x, full, batch, g, gScale, limitWork);
+        int moved = 0;
+        for (int s = 0; s < batch; s++) {
+            if (st[s] != SampleStatus.OK || inside(full, s * p, g, gScale, s * m)) {
+                continue;
+            }
+            moved++;
+            st[s] = move(x, s, full);
+        }
+        return moved;
+    }
+
+    /**
+     * @return whether a row satisfies every limit: a single output against its constant exactly, an expression
+     *         limit to its rounding bound
+     */
+    private boolean inside(double[] row, int ro, double[] values, double[] scales, int go) {
+        for (int j = 0; j < m; j++) {
+            int o = limits.singleOutput()[j];
+            if (o >= 0) {
+                double y = row[ro + o];
+                if (limits.lower()[j] ? !(y >= limits.bound()[j]) : !(y <= limits.bound()[j])) {
+                    return false;
+                }
+            } else if (!(values[go + j] >= -3 * EPS * scales[go + j])) {
+                return false;
+            }
+        }
+        return true;
+    }
+
+    /** Linearise, project, complete, until the row is inside or the cap is reached. */
+    private byte move(double[] x, int s, double[] full) {
+        if (nIn > 0) {
+            System.arraycopy(x, s * nIn, xs, 0, nIn);
+        }
+        System.arraycopy(full, s * p, ys, 0, p);
+        for (int f = 0; f < k; f++) {
+            zs[f] = ys[free[f]];
+        }
+        for (int iteration = 0; iteration < limits.maxIterations(); iteration++) {
+            if (!sensitivity()) {
+                return SampleStatus.SINGULAR;
+            }
+            evaluator.evaluate(xs, ys, 1, gs, gsc, gjy, null, limitWork);
+            projectionProblem();
+            if (!qp.factor(w, k)) {
+                return SampleStatus.OUTSIDE_LIMITS;
+            }
+            int code = qp.solve(aqp, bqp, m, zs, us, lambda, active);
+            if (code < 0) {
+                return SampleStatus.OUTSIDE_LIMITS;
+            }
+            snapFree();
+            solver.forward(xs, us, 1, ys, st1, true);
+            if (st1[0] != SampleStatus.OK) {
+                return st1[0];
+            }
+            System.arraycopy(us, 0, zs, 0, k);
+            evaluator.residuals(xs, ys, 1, gs, gsc, limitWork);
+            if (snapCompleted() && !lawsHold()) {
+                return SampleStatus.NOT_CONVERGED;
+            }
+            if (inside(ys, 0, gs, gsc, 0)) {
+                System.arraycopy(ys, 0, full, s * p, p);
+                return SampleStatus.OK;
+            }
+        }
+        return SampleStatus.OUTSIDE_LIMITS;
+    }
+
+    /** J = dy_c/dz = −A⁻¹ ∂C/∂z at the current row, into {@code jz} (n×k, row-major). */
+    private boolean sensitivity() {
+        laws.evaluate(xs, ys, 1, null, null, jy, null, lawWork);
+        Arrays.fill(a, 0.0);
+        Arrays.fill(jz, 0.0);
+        for (int e = 0; e < jy.length; e++) {
+            int r = entryRole[e];
+            if (r >= 0) {
+                a[entryLaw[e] * n + r] = jy[e];
+            } else {
+                jz[entryLaw[e] * k + (-r - 1)] = -jy[e];
+            }
+        }
+        if (!DenseLu.factor(a, n, pivot)) {
+            return false;
+        }
+        for (int f = 0; f < k; f++) {
+            for (int i = 0; i < n; i++) {
+                rhs[i] = jz[i * k + f];
+            }
+            DenseLu.solve(a, n, pivot, rhs, 0);
+            for (int c = 0; c < n; c++) {
+                jz[c * k + f] = rhs[c];
+            }
+        }
+        return true;
+    }
+
+    /** The programme's rows (G_f + G_c J), right-hand sides and metric W = S_f + Jᵀ S_c J. */
+    private void projectionProblem() {
+        Arrays.fill(aqp, 0.0);
+        for (int j = 0; j < m; j++) {
+            int[] cols = evaluator.outputColumns(j);
+            int off = evaluator.outputOffset(j);
+            for (int q = 0; q < cols.length; q++) {
+                addColumn(j, cols[q], gjy[off + q]);
+            }
+            double b = -gs[j];
+            double mag = Math.abs(gs[j]);
+            for (int f = 0; f < k; f++) {
+                b += aqp[j * k + f] * zs[f];
+                mag += Math.abs(aqp[j * k + f] * zs[f]);
+            }
+            magnitude[j] = mag;
+            bqp[j] = isFreeSingle(j) ? b : b + MARGIN * mag;
+        }
+        double[] size = limits.scales();
+        Arrays.fill(w, 0.0);
+        for (int f = 0; f < k; f++) {
+            w[f * k + f] = 1 / (size[free[f]] * size[free[f]]);
+        }
+        for (int c = 0; c < n; c++) {
+            double sc = 1 / (size[completed[c]] * size[completed[c]]);
+            for (int f = 0; f < k; f++) {
+                double jf = jz[c * k + f] * sc;
+                for (int h = 0; h < k; h++) {
+                    w[f * k + h] += jf * jz[c * k + h];
+                }
+            }
+        }
+    }
+
+    /** Adds dg_j/dy_o to row j of the programme: directly for a free output, through J for a completed one. */
+    private void addColumn(int j, int o, double d) {
+        for (int f = 0; f < k; f++) {
+            if (free[f] == o) {
+                aqp[j * k + f] += d;
+                return;
+            }
+        }
+        for (int c = 0; c < n; c++) {
+            if (completed[c] == o) {
+                for (int f = 0; f < k; f++) {
+                    aqp[j * k + f] += d * jz[c * k + f];
+                }
+                return;
+            }
+        }
+    }
+
+    private boolean isFreeSingle(int j) {
+        int o = limits.singleOutput()[j];
+        for (int f = 0; f < k && o >= 0; f++) {
+            if (free[f] == o) {
+                return true;
+            }
+        }
+        return false;
+    }
+
+    /**
+     * A free output the programme left within rounding of its constant limit (on either side: there the limit is
+     * active) is set to the limit itself, so it holds exactly and the least move lands on it.
+     */
+    private void snapFree() {
+        for (int j = 0; j < m; j++) {
+            int o = limits.singleOutput()[j];
+            for (int f = 0; f < k && o >= 0; f++) {
+                if (free[f] == o && near(j, us[f])) {
+                    us[f] = limits.bound()[j];
+                }
+            }
+        }
+    }
+
+    /** @return whether a completed output was set to its limit (it was within rounding on the wrong side) */
+    private boolean snapCompleted() {
+        boolean snapped = false;
+        for (int j = 0; j < m; j++) {
+            int o = limits.singleOutput()[j];
+            if (o >= 0 && wrongSide(j, ys[o]) && Math.abs(ys[o] - limits.bound()[j])
+                    <= 16 * EPS * (Math.abs(ys[o]) + Math.abs(limits.bound()[j]))) {
+                ys[o] = limits.bound()[j];
+                snapped = true;
+            }
+        }
+        return snapped;
+    }
+
+    private boolean wrongSide(int j, double y) {
+        return limits.lower()[j] ? y < limits.bound()[j] : y > limits.bound()[j];
+    }
+
+    /** @return whether y is within rounding of limit j's constant, judged by the size of the programme's row */
+    private boolean near(int j, double y) {
+        double scale = Math.abs(limits.bound()[j]) + Math.abs(y) + magnitude[j] / Math.max(1e-300, rowNorm(j));
+        return Math.abs(y - limits.bound()[j]) <= SNAP * scale;
+    }
+
+    private double rowNorm(int j) {
+        double r = 0;
+        for (int f = 0; f < k; f++) {
+            r = Math.max(r, Math.abs(aqp[j * k + f]));
+        }
+        return r;
+    }
+
+    /** @return whether every law still holds to its bound at the row after snapping */
+    private boolean lawsHold() {
+        st1[0] = SampleStatus.OK;
+        certifier.verify(xs, 1, ys, st1, check);
+        return st1[0] == SampleStatus.OK;
+    }
+
+    /**
+     * Refuses the gradient of a batch in which a sample lies on a limit: there the map from free outputs to outputs
+     * is the projection's, whose gradient is not available yet. Samples strictly inside every limit are plain
+     * completions, whose gradient is exact.
+     *
+     * @throws UnsupportedOperationException naming the first such sample and limit
+     */
+    public void refuseGradientOnLimits(double[] x, int batch, double[] full) {
+        if (g.length < batch * m) {
+            g = new double[batch * m];
+            gScale = new double[batch * m];
+        }
+        evaluator.residuals(x, full, batch, g, gScale, limitWork);
+        for (int s = 0; s < batch; s++) {
+            for (int j = 0; j < m; j++) {
+                int o = limits.singleOutput()[j];
+                boolean on = o >= 0
+                        ? Math.abs(full[s * p + o] - limits.bound()[j])
+                                <= SNAP * (Math.abs(limits.bound()[j]) + limits.scales()[o])
+                        : Math.abs(g[s * m + j]) <= SNAP * gScale[s * m + j];
+                if (on) {
+                    throw new UnsupportedOperationException("sample " + s + " lies on limit '"
+                            + limits.names().get(j) + "': gradients through limits are not available yet; limits"
+                            + " are enforced in forward passes (inference, lawful complete), not in training");
+                }
+            }
+        }
+    }
+}
