@@ -180,4 +180,83 @@ class CompletionLimitsTest {
         }
         assertTrue(moved > 40, "only " + moved + " of 200 samples were outside a limit");
     }
+
+    @Test
+    void aWaterBudgetThatWouldRainNegativeAmountsEndsWithNoRain() {
+        // precipitation closes the column's water budget P = E - m*dq (the coefficient m is an input: the affine
+        // tier); a moistening dq that leaves P < 0 is reduced to the one that leaves exactly no rain, dq = E/m,
+        // the only point with P >= 0 nearest to it (common practice: a budget with zero precipitation)
+        LawSet budget = LawSet.parse("<budget>", String.join("\n",
+                "input  E   kg/(m2 s)",
+                "input  m   kg/m2",
+                "output dq  1/s",
+                "output P   kg/(m2 s)",
+                "law water: P = E - m * dq",
+                "complete P",
+                "limit rain: P >= 0",
+                ""));
+        Completion c = Completion.of(budget);
+        assertEquals(Tier.AFFINE, c.tier());
+        double[] y = new double[2];
+        c.forward(new double[] {1, 2}, new double[] {0.8}, 1, y, null, null);
+        assertEquals(0.5, y[0], 1e-11);
+        assertTrue(y[1] >= 0 && y[1] <= 1e-11, "P = " + y[1]);
+    }
+
+    @Test
+    void aNonlinearLawKeepsItsLimitAndItsLaw() {
+        LawSet cubic = LawSet.parse("<cubic>", String.join("\n",
+                "input  x",
+                "output a",
+                "output v",
+                "law shape: v^3 + v = x - a",
+                "complete v",
+                "guess v = 1",
+                "const floor = 0.5",
+                "limit low: v >= floor",
+                ""));
+        Completion c = Completion.of(cubic);
+        assertEquals(Tier.NONLINEAR, c.tier());
+        double[] y = new double[2];
+        // x - a = 0.2 gives v ≈ 0.19 below its limit
+        c.forward(new double[] {1}, new double[] {0.8}, 1, y, null, null);
+        assertTrue(y[1] >= 0.5 && y[1] <= 0.5 + 1e-9, "v = " + y[1]);
+        double residual = y[1] * y[1] * y[1] + y[1] - (1 - y[0]);
+        assertTrue(Math.abs(residual) <= 8 * 0x1p-53 * 2, "law residual " + residual);
+    }
+
+    @Test
+    void sixteenThreadsGiveTheBitsOfOne() throws InterruptedException {
+        Completion c = Completion.of(LawSet.parse("<reformer>", REFORMER));
+        SplittableRandom r = new SplittableRandom(5);
+        int batch = 64;
+        double[] feed = new double[6 * batch];
+        double[] z = new double[2 * batch];
+        for (int i = 0; i < feed.length; i++) {
+            feed[i] = 0.05 + r.nextDouble();
+        }
+        for (int i = 0; i < z.length; i++) {
+            z[i] = 2 * r.nextDouble();
+        }
+        double[] one = new double[6 * batch];
+        c.forward(feed, z, batch, one, null, c.newWorkspace());
+        double[][] many = new double[16][6 * batch];
+        Thread[] threads = new Thread[16];
+        for (int t = 0; t < 16; t++) {
+            int id = t;
+            threads[t] = new Thread(() -> {
+                Completion.Workspace ws = c.newWorkspace();
+                for (int round = 0; round < 5; round++) {
+                    c.forward(feed, z, batch, many[id], null, ws);
+                }
+            });
+            threads[t].start();
+        }
+        for (Thread t : threads) {
+            t.join();
+        }
+        for (double[] y : many) {
+            assertArrayEquals(one, y, 0.0);
+        }
+    }
 }
