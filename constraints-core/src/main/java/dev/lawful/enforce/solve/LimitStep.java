@@ -72,6 +72,12 @@ public final class LimitStep {
     private final double[] w;
     private final double[] lambda;
     private final int[] active;
+    /** The plan's per-limit arrays, read directly by the per-sample check. */
+    private final int[] single;
+    private final double[] bound;
+    private final boolean[] lower;
+    /** Whether every limit bounds one output by a constant, so the fast path needs no evaluation. */
+    private final boolean allConstantBounds;
 
     /**
      * @param plan   a plan with limits
@@ -115,6 +121,14 @@ public final class LimitStep {
         this.w = new double[k * k];
         this.lambda = new double[m];
         this.active = new int[Math.max(1, Math.min(k, m))];
+        this.single = limits.singleOutput();
+        this.bound = limits.bound();
+        this.lower = limits.lower();
+        boolean constant = true;
+        for (int j = 0; j < m; j++) {
+            constant &= limits.singleOutput()[j] >= 0;
+        }
+        this.allConstantBounds = constant;
     }
 
     /**
@@ -130,7 +144,10 @@ public final class LimitStep {
             g = new double[batch * m];
             gScale = new double[batch * m];
         }
-        evaluator.residuals(x, full, batch, g, gScale, limitWork);
+        if (!allConstantBounds) {
+            // expression limits need their values; limits of one output by a constant are one comparison each
+            evaluator.residuals(x, full, batch, g, gScale, limitWork);
+        }
         int moved = 0;
         for (int s = 0; s < batch; s++) {
             if (st[s] != SampleStatus.OK || inside(full, s * p, g, gScale, s * m)) {
@@ -147,11 +164,14 @@ public final class LimitStep {
      *         limit to its rounding bound
      */
     private boolean inside(double[] row, int ro, double[] values, double[] scales, int go) {
+        final int[] single = this.single;
+        final double[] bound = this.bound;
+        final boolean[] lower = this.lower;
         for (int j = 0; j < m; j++) {
-            int o = limits.singleOutput()[j];
+            int o = single[j];
             if (o >= 0) {
                 double y = row[ro + o];
-                if (limits.lower()[j] ? !(y >= limits.bound()[j]) : !(y <= limits.bound()[j])) {
+                if (lower[j] ? !(y >= bound[j]) : !(y <= bound[j])) {
                     return false;
                 }
             } else if (!(values[go + j] >= -3 * EPS * scales[go + j])) {
