@@ -97,8 +97,7 @@ public final class Completion {
         private Workspace(Completion owner) {
             this.owner = owner;
             this.solver = TierSolver.create(owner.plan, owner.columns);
-            this.limitStep = owner.plan.limits() == null ? null : new LimitStep(owner.plan,
-                    TierSolver.create(owner.plan, owner.columns));
+            this.limitStep = owner.plan.limits() == null ? null : new LimitStep(owner.plan, solver);
         }
 
         private void ensure(int batch) {

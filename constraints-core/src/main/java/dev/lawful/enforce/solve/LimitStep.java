@@ -2,7 +2,6 @@ package dev.lawful.enforce.solve;
 
 import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.enforce.SampleStatus;
-import dev.lawful.enforce.linear.DenseLu;
 import dev.lawful.enforce.linear.DenseQp;
 import dev.lawful.enforce.plan.CompletionPlan;
 import dev.lawful.enforce.plan.LimitPlan;
@@ -40,6 +39,9 @@ public final class LimitStep {
     private final Certifier certifier;
     private final int[] entryLaw;
     private final int[] entryRole;
+    /** Per declared output: its completed index k ≥ 0, or −(f+1) for free index f. */
+    private final int[] role;
+    private final ImplicitGradient gradient;
     private final int[] free;
     private final int[] completed;
     private final int n;
@@ -49,7 +51,6 @@ public final class LimitStep {
     private final int nIn;
     private final DenseQp qp;
     private final SolveWork check;
-    private final LawEvaluator.Workspace lawWork;
     private final LawEvaluator.Workspace limitWork;
     private double[] g = new double[0];
     private double[] gScale = new double[0];
@@ -58,12 +59,9 @@ public final class LimitStep {
     private final double[] us;
     private final double[] ys;
     private final byte[] st1 = new byte[1];
-    private final double[] jy;
     private final double[] gs;
     private final double[] gsc;
     private final double[] gjy;
-    private final double[] a;
-    private final int[] pivot;
     private final double[] jz;
     private final double[] rhs;
     private final double[] aqp;
@@ -81,7 +79,8 @@ public final class LimitStep {
 
     /**
      * @param plan   a plan with limits
-     * @param solver this workspace's solver of the plan's tier, used to complete a moved sample
+     * @param solver this workspace's solver of the plan's tier, used again to complete a moved sample once the
+     *               batch's solve is done
      */
     public LimitStep(CompletionPlan plan, TierSolver solver) {
         this.limits = plan.limits();
@@ -91,6 +90,8 @@ public final class LimitStep {
         this.certifier = new Certifier(plan);
         this.entryLaw = plan.entries().entryLaw();
         this.entryRole = plan.entries().entryRole();
+        this.role = plan.roles().role();
+        this.gradient = new ImplicitGradient(plan);
         this.free = plan.free();
         this.completed = plan.completed();
         this.n = plan.lawCount();
@@ -99,20 +100,16 @@ public final class LimitStep {
         this.p = plan.outputWidth();
         this.nIn = plan.inputWidth();
         this.qp = new DenseQp(Math.max(1, k), m);
-        this.check = new SolveWork(plan, false);
+        this.check = new SolveWork(plan, true);
         check.ensure(1);
-        this.lawWork = laws.newWorkspace();
         this.limitWork = evaluator.newWorkspace();
         this.xs = new double[nIn];
         this.zs = new double[k];
         this.us = new double[k];
         this.ys = new double[p];
-        this.jy = new double[laws.outputNonzeros()];
         this.gs = new double[m];
         this.gsc = new double[m];
         this.gjy = new double[evaluator.outputNonzeros()];
-        this.a = new double[n * n];
-        this.pivot = new int[n];
         this.jz = new double[n * k];
         this.rhs = new double[n];
         this.aqp = new double[m * k];
@@ -126,7 +123,7 @@ public final class LimitStep {
         this.lower = limits.lower();
         boolean constant = true;
         for (int j = 0; j < m; j++) {
-            constant &= limits.singleOutput()[j] >= 0;
+            constant &= single[j] >= 0;
         }
         this.allConstantBounds = constant;
     }
@@ -140,14 +137,7 @@ public final class LimitStep {
      * @return the number of samples moved
      */
     public int apply(double[] x, int batch, double[] full, byte[] st) {
-        if (g.length < batch * m) {
-            g = new double[batch * m];
-            gScale = new double[batch * m];
-        }
-        if (!allConstantBounds) {
-            // expression limits need their values; limits of one output by a constant are one comparison each
-            evaluator.residuals(x, full, batch, g, gScale, limitWork);
-        }
+        evaluateExpressions(x, batch, full);
         int moved = 0;
         for (int s = 0; s < batch; s++) {
             if (st[s] != SampleStatus.OK || inside(full, s * p, g, gScale, s * m)) {
@@ -157,6 +147,21 @@ public final class LimitStep {
             st[s] = move(x, s, full);
         }
         return moved;
+    }
+
+    /**
+     * The values and scales of every limit of a batch, into {@code g} and {@code gScale}, when some limit is on an
+     * expression; limits of one output by a constant are compared with the outputs directly and need none.
+     */
+    private void evaluateExpressions(double[] x, int batch, double[] full) {
+        if (allConstantBounds) {
+            return;
+        }
+        if (g.length < batch * m) {
+            g = new double[batch * m];
+            gScale = new double[batch * m];
+        }
+        evaluator.residuals(x, full, batch, g, gScale, limitWork);
     }
 
     /**
@@ -221,27 +226,24 @@ public final class LimitStep {
         return SampleStatus.OUTSIDE_LIMITS;
     }
 
-    /** J = dy_c/dz = −A⁻¹ ∂C/∂z at the current row, into {@code jz} (n×k, row-major). */
+    /** J = dy_c/dz = −A⁻¹ ∂C/∂z at the current row, into {@code jz} (n×k, row-major), with the gradient's A. */
     private boolean sensitivity() {
-        laws.evaluate(xs, ys, 1, null, null, jy, null, lawWork);
-        Arrays.fill(a, 0.0);
-        Arrays.fill(jz, 0.0);
-        for (int e = 0; e < jy.length; e++) {
-            int r = entryRole[e];
-            if (r >= 0) {
-                a[entryLaw[e] * n + r] = jy[e];
-            } else {
-                jz[entryLaw[e] * k + (-r - 1)] = -jy[e];
-            }
-        }
-        if (!DenseLu.factor(a, n, pivot)) {
+        laws.evaluate(xs, ys, 1, null, null, check.jy, null, check.evaluation);
+        if (!gradient.factorWhole(0, check)) {
             return false;
+        }
+        Arrays.fill(jz, 0.0);
+        for (int e = 0; e < entryLaw.length; e++) {
+            int r = entryRole[e];
+            if (r < 0) {
+                jz[entryLaw[e] * k + (-r - 1)] = -check.jy[e];
+            }
         }
         for (int f = 0; f < k; f++) {
             for (int i = 0; i < n; i++) {
                 rhs[i] = jz[i * k + f];
             }
-            DenseLu.solve(a, n, pivot, rhs, 0);
+            gradient.solveWhole(0, check, rhs);
             for (int c = 0; c < n; c++) {
                 jz[c * k + f] = rhs[c];
             }
@@ -285,30 +287,18 @@ public final class LimitStep {
 
     /** Adds dg_j/dy_o to row j of the programme: directly for a free output, through J for a completed one. */
     private void addColumn(int j, int o, double d) {
-        for (int f = 0; f < k; f++) {
-            if (free[f] == o) {
-                aqp[j * k + f] += d;
-                return;
-            }
+        int r = role[o];
+        if (r < 0) {
+            aqp[j * k + (-r - 1)] += d;
+            return;
         }
-        for (int c = 0; c < n; c++) {
-            if (completed[c] == o) {
-                for (int f = 0; f < k; f++) {
-                    aqp[j * k + f] += d * jz[c * k + f];
-                }
-                return;
-            }
+        for (int f = 0; f < k; f++) {
+            aqp[j * k + f] += d * jz[r * k + f];
         }
     }
 
     private boolean isFreeSingle(int j) {
-        int o = limits.singleOutput()[j];
-        for (int f = 0; f < k && o >= 0; f++) {
-            if (free[f] == o) {
-                return true;
-            }
-        }
-        return false;
+        return single[j] >= 0 && role[single[j]] < 0;
     }
 
     /**
@@ -317,10 +307,10 @@ public final class LimitStep {
      */
     private void snapFree() {
         for (int j = 0; j < m; j++) {
-            int o = limits.singleOutput()[j];
-            for (int f = 0; f < k && o >= 0; f++) {
-                if (free[f] == o && near(j, us[f])) {
-                    us[f] = limits.bound()[j];
+            if (isFreeSingle(j)) {
+                int f = -role[single[j]] - 1;
+                if (near(j, us[f])) {
+                    us[f] = bound[j];
                 }
             }
         }
@@ -330,10 +320,10 @@ public final class LimitStep {
     private boolean snapCompleted() {
         boolean snapped = false;
         for (int j = 0; j < m; j++) {
-            int o = limits.singleOutput()[j];
-            if (o >= 0 && wrongSide(j, ys[o]) && Math.abs(ys[o] - limits.bound()[j])
-                    <= 16 * EPS * (Math.abs(ys[o]) + Math.abs(limits.bound()[j]))) {
-                ys[o] = limits.bound()[j];
+            int o = single[j];
+            if (o >= 0 && wrongSide(j, ys[o]) && Math.abs(ys[o] - bound[j])
+                    <= 16 * EPS * (Math.abs(ys[o]) + Math.abs(bound[j]))) {
+                ys[o] = bound[j];
                 snapped = true;
             }
         }
@@ -341,13 +331,13 @@ public final class LimitStep {
     }
 
     private boolean wrongSide(int j, double y) {
-        return limits.lower()[j] ? y < limits.bound()[j] : y > limits.bound()[j];
+        return lower[j] ? y < bound[j] : y > bound[j];
     }
 
     /** @return whether y is within rounding of limit j's constant, judged by the size of the programme's row */
     private boolean near(int j, double y) {
-        double scale = Math.abs(limits.bound()[j]) + Math.abs(y) + magnitude[j] / Math.max(1e-300, rowNorm(j));
-        return Math.abs(y - limits.bound()[j]) <= SNAP * scale;
+        double scale = Math.abs(bound[j]) + Math.abs(y) + magnitude[j] / Math.max(1e-300, rowNorm(j));
+        return Math.abs(y - bound[j]) <= SNAP * scale;
     }
 
     private double rowNorm(int j) {
@@ -373,17 +363,12 @@ public final class LimitStep {
      * @throws UnsupportedOperationException naming the first such sample and limit
      */
     public void refuseGradientOnLimits(double[] x, int batch, double[] full) {
-        if (g.length < batch * m) {
-            g = new double[batch * m];
-            gScale = new double[batch * m];
-        }
-        evaluator.residuals(x, full, batch, g, gScale, limitWork);
+        evaluateExpressions(x, batch, full);
         for (int s = 0; s < batch; s++) {
             for (int j = 0; j < m; j++) {
-                int o = limits.singleOutput()[j];
+                int o = single[j];
                 boolean on = o >= 0
-                        ? Math.abs(full[s * p + o] - limits.bound()[j])
-                                <= SNAP * (Math.abs(limits.bound()[j]) + limits.scales()[o])
+                        ? Math.abs(full[s * p + o] - bound[j]) <= SNAP * (Math.abs(bound[j]) + limits.scales()[o])
                         : Math.abs(g[s * m + j]) <= SNAP * gScale[s * m + j];
                 if (on) {
                     throw new UnsupportedOperationException("sample " + s + " lies on limit '"
