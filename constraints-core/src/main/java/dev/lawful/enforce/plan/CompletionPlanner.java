@@ -26,6 +26,8 @@ public final class CompletionPlanner {
     /** Condition number from which a completed block counts as singular. */
     private static final double SINGULAR_CONDITION = 1e15;
     private static final long START_SEED = 0x5EED3L;
+    /** Linearise-and-project steps per sample outside a limit: one suffices for affine dependence on z. */
+    private static final int LIMIT_ITERATIONS = 20;
 
     /**
      * What the user asked for.
@@ -135,7 +137,8 @@ public final class CompletionPlanner {
             bound[j] = l.bound();
             lower[j] = l.lower();
         }
-        return new LimitPlan(expanded.limitEvaluator(), List.copyOf(names), single, bound, lower, s, 20);
+        return new LimitPlan(expanded.limitEvaluator(), List.copyOf(names), single, bound, lower, s,
+                LIMIT_ITERATIONS);
     }
 
     /** @return the completed outputs: the request's, the law text's, or the automatic choice (with a note) */
