@@ -461,12 +461,12 @@ public final class Completion {
             columns.fromFreeFirst(batch, y, full);
             columns.fromFreeFirst(batch, gradOut, g);
         }
-        if (ws.limitStep != null) {
-            ws.limitStep.refuseGradientOnLimits(x, batch, full);
-        }
         int singular = ws.solver.backward(x, batch, full, g, gradZ, gradX, policy == OnBadSample.THROW);
         if (singular >= 0) {
             throw failures.failure(singular, SampleStatus.SINGULAR);
+        }
+        if (ws.limitStep != null) {
+            ws.limitStep.gradients(x, batch, full, gradZ, gradX);
         }
     }
 

@@ -100,13 +100,18 @@ class CompletionLimitsTest {
     }
 
     @Test
-    void theGradientOnALimitIsRefusedClearlyAndInsideItIsThePlainOne() {
+    void theGradientOnALimitIsTheProjectionsAndInsideItIsThePlainOne() {
         Completion c = Completion.of(split("limit dry: c >= 0\n"));
         double[] y = new double[3];
         c.forward(new double[] {1}, new double[] {0.8, 0.7}, 1, y, null, null);
-        UnsupportedOperationException e = assertThrows(UnsupportedOperationException.class,
-                () -> c.backward(new double[] {1}, y, new double[] {1, 0, 0}, 1, new double[2], null, null));
-        assertTrue(e.getMessage().startsWith("sample 0 lies on limit 'dry'"), e.getMessage());
+        // on the limit c = 0 the least move gives a* = (x + a − b)/2, b* = (x − a + b)/2, c* = 0 (the projection
+        // onto the line a + b = x in Σ Δ² over a, b, c; common practice), so ∂a*/∂a = 1/2, ∂a*/∂b = −1/2,
+        // ∂a*/∂x = 1/2, and c* does not move
+        double[] dz = new double[3 * 2];
+        double[] dx = new double[3];
+        c.jacobians(new double[] {1}, y, 1, dz, dx, null);
+        assertArrayEquals(new double[] {0.5, -0.5, -0.5, 0.5, 0, 0}, dz, 1e-12);
+        assertArrayEquals(new double[] {0.5, 0.5, 0}, dx, 1e-12);
         double[] inside = new double[3];
         c.forward(new double[] {1}, new double[] {0.2, 0.3}, 1, inside, null, null);
         double[] gz = new double[2];

@@ -108,6 +108,19 @@ final class ImplicitGradient {
         }
     }
 
+    /**
+     * Solves Aᵀ v = r for sample s with the factors {@link #factorWhole} left (or the plan's, when A is constant).
+     *
+     * @param v modified: r on entry, v on return ({@code n} values)
+     */
+    void solveWholeTransposed(int s, SolveWork w, double[] v) {
+        if (constant != null) {
+            DenseLu.solveTransposed(constant.wholeLu(), n, constant.wholePivot(), v, 0);
+        } else {
+            DenseLu.solveTransposed(w.lu, n, w.pivots, v, 0, s * n * n, s * n);
+        }
+    }
+
     /** Builds the whole block A = ∂C/∂y_c of sample s and factors it into the work arrays (unless constant). */
     boolean factorWhole(int s, SolveWork w) {
         if (constant != null) {

@@ -5,7 +5,6 @@ import dev.lawful.enforce.SampleStatus;
 import dev.lawful.enforce.linear.DenseQp;
 import dev.lawful.enforce.plan.CompletionPlan;
 import dev.lawful.enforce.plan.LimitPlan;
-import java.util.Arrays;
 
 /**
  * Keeps completed samples inside the limits g_j(x, y) ≥ 0. A sample whose completion already satisfies every limit
@@ -34,23 +33,17 @@ public final class LimitStep {
 
     private final LimitPlan limits;
     private final TierSolver solver;
-    private final LawEvaluator laws;
     private final LawEvaluator evaluator;
     private final Certifier certifier;
-    private final int[] entryLaw;
-    private final int[] entryRole;
-    /** Per declared output: its completed index k ≥ 0, or −(f+1) for free index f. */
+    private final LimitLinearisation lin;
+    private final LimitGradient gradient;
     private final int[] role;
-    private final ImplicitGradient gradient;
     private final int[] free;
-    private final int[] completed;
-    private final int n;
     private final int k;
     private final int m;
     private final int p;
     private final int nIn;
     private final DenseQp qp;
-    private final SolveWork check;
     private final LawEvaluator.Workspace limitWork;
     private double[] g = new double[0];
     private double[] gScale = new double[0];
@@ -59,15 +52,8 @@ public final class LimitStep {
     private final double[] us;
     private final double[] ys;
     private final byte[] st1 = new byte[1];
-    private final double[] gs;
-    private final double[] gsc;
-    private final double[] gjy;
-    private final double[] jz;
-    private final double[] rhs;
-    private final double[] aqp;
     private final double[] bqp;
     private final double[] magnitude;
-    private final double[] w;
     private final double[] lambda;
     private final int[] active;
     /** The plan's per-limit arrays, read directly by the per-sample check. */
@@ -85,37 +71,24 @@ public final class LimitStep {
     public LimitStep(CompletionPlan plan, TierSolver solver) {
         this.limits = plan.limits();
         this.solver = solver;
-        this.laws = plan.evaluator();
         this.evaluator = limits.evaluator();
         this.certifier = new Certifier(plan);
-        this.entryLaw = plan.entries().entryLaw();
-        this.entryRole = plan.entries().entryRole();
+        this.lin = new LimitLinearisation(plan);
+        this.gradient = new LimitGradient(plan, lin);
         this.role = plan.roles().role();
-        this.gradient = new ImplicitGradient(plan);
         this.free = plan.free();
-        this.completed = plan.completed();
-        this.n = plan.lawCount();
         this.k = plan.freeWidth();
         this.m = limits.count();
         this.p = plan.outputWidth();
         this.nIn = plan.inputWidth();
         this.qp = new DenseQp(Math.max(1, k), m);
-        this.check = new SolveWork(plan, true);
-        check.ensure(1);
         this.limitWork = evaluator.newWorkspace();
         this.xs = new double[nIn];
         this.zs = new double[k];
         this.us = new double[k];
         this.ys = new double[p];
-        this.gs = new double[m];
-        this.gsc = new double[m];
-        this.gjy = new double[evaluator.outputNonzeros()];
-        this.jz = new double[n * k];
-        this.rhs = new double[n];
-        this.aqp = new double[m * k];
         this.bqp = new double[m];
         this.magnitude = new double[m];
-        this.w = new double[k * k];
         this.lambda = new double[m];
         this.active = new int[Math.max(1, Math.min(k, m))];
         this.single = limits.singleOutput();
@@ -196,15 +169,14 @@ public final class LimitStep {
             zs[f] = ys[free[f]];
         }
         for (int iteration = 0; iteration < limits.maxIterations(); iteration++) {
-            if (!sensitivity()) {
+            if (!lin.linearise(xs, ys, false)) {
                 return SampleStatus.SINGULAR;
             }
-            evaluator.evaluate(xs, ys, 1, gs, gsc, gjy, null, limitWork);
-            projectionProblem();
-            if (!qp.factor(w, k)) {
+            rightHandSides();
+            if (!qp.factor(lin.w, k)) {
                 return SampleStatus.OUTSIDE_LIMITS;
             }
-            int code = qp.solve(aqp, bqp, m, zs, us, lambda, active);
+            int code = qp.solve(lin.rows, bqp, m, zs, us, lambda, active);
             if (code < 0) {
                 return SampleStatus.OUTSIDE_LIMITS;
             }
@@ -214,11 +186,11 @@ public final class LimitStep {
                 return st1[0];
             }
             System.arraycopy(us, 0, zs, 0, k);
-            evaluator.residuals(xs, ys, 1, gs, gsc, limitWork);
+            lin.values(xs, ys);
             if (snapCompleted() && !lawsHold()) {
                 return SampleStatus.NOT_CONVERGED;
             }
-            if (inside(ys, 0, gs, gsc, 0)) {
+            if (inside(ys, 0, lin.g, lin.gScale, 0)) {
                 System.arraycopy(ys, 0, full, s * p, p);
                 return SampleStatus.OK;
             }
@@ -226,74 +198,20 @@ public final class LimitStep {
         return SampleStatus.OUTSIDE_LIMITS;
     }
 
-    /** J = dy_c/dz = −A⁻¹ ∂C/∂z at the current row, into {@code jz} (n×k, row-major), with the gradient's A. */
-    private boolean sensitivity() {
-        laws.evaluate(xs, ys, 1, null, null, check.jy, null, check.evaluation);
-        if (!gradient.factorWhole(0, check)) {
-            return false;
-        }
-        Arrays.fill(jz, 0.0);
-        for (int e = 0; e < entryLaw.length; e++) {
-            int r = entryRole[e];
-            if (r < 0) {
-                jz[entryLaw[e] * k + (-r - 1)] = -check.jy[e];
-            }
-        }
-        for (int f = 0; f < k; f++) {
-            for (int i = 0; i < n; i++) {
-                rhs[i] = jz[i * k + f];
-            }
-            gradient.solveWhole(0, check, rhs);
-            for (int c = 0; c < n; c++) {
-                jz[c * k + f] = rhs[c];
-            }
-        }
-        return true;
-    }
-
-    /** The programme's rows (G_f + G_c J), right-hand sides and metric W = S_f + Jᵀ S_c J. */
-    private void projectionProblem() {
-        Arrays.fill(aqp, 0.0);
+    /**
+     * The programme's right-hand sides: row j holds for u when (row_j)·u ≥ (row_j)·z − g_j, aimed inside by a
+     * margin unless the limit bounds one free output by a constant.
+     */
+    private void rightHandSides() {
         for (int j = 0; j < m; j++) {
-            int[] cols = evaluator.outputColumns(j);
-            int off = evaluator.outputOffset(j);
-            for (int q = 0; q < cols.length; q++) {
-                addColumn(j, cols[q], gjy[off + q]);
-            }
-            double b = -gs[j];
-            double mag = Math.abs(gs[j]);
+            double b = -lin.g[j];
+            double mag = Math.abs(lin.g[j]);
             for (int f = 0; f < k; f++) {
-                b += aqp[j * k + f] * zs[f];
-                mag += Math.abs(aqp[j * k + f] * zs[f]);
+                b += lin.rows[j * k + f] * zs[f];
+                mag += Math.abs(lin.rows[j * k + f] * zs[f]);
             }
             magnitude[j] = mag;
             bqp[j] = isFreeSingle(j) ? b : b + MARGIN * mag;
-        }
-        double[] size = limits.scales();
-        Arrays.fill(w, 0.0);
-        for (int f = 0; f < k; f++) {
-            w[f * k + f] = 1 / (size[free[f]] * size[free[f]]);
-        }
-        for (int c = 0; c < n; c++) {
-            double sc = 1 / (size[completed[c]] * size[completed[c]]);
-            for (int f = 0; f < k; f++) {
-                double jf = jz[c * k + f] * sc;
-                for (int h = 0; h < k; h++) {
-                    w[f * k + h] += jf * jz[c * k + h];
-                }
-            }
-        }
-    }
-
-    /** Adds dg_j/dy_o to row j of the programme: directly for a free output, through J for a completed one. */
-    private void addColumn(int j, int o, double d) {
-        int r = role[o];
-        if (r < 0) {
-            aqp[j * k + (-r - 1)] += d;
-            return;
-        }
-        for (int f = 0; f < k; f++) {
-            aqp[j * k + f] += d * jz[r * k + f];
         }
     }
 
@@ -343,7 +261,7 @@ public final class LimitStep {
     private double rowNorm(int j) {
         double r = 0;
         for (int f = 0; f < k; f++) {
-            r = Math.max(r, Math.abs(aqp[j * k + f]));
+            r = Math.max(r, Math.abs(lin.rows[j * k + f]));
         }
         return r;
     }
@@ -351,31 +269,20 @@ public final class LimitStep {
     /** @return whether every law still holds to its bound at the row after snapping */
     private boolean lawsHold() {
         st1[0] = SampleStatus.OK;
-        certifier.verify(xs, 1, ys, st1, check);
+        certifier.verify(xs, 1, ys, st1, lin.check);
         return st1[0] == SampleStatus.OK;
     }
 
     /**
-     * Refuses the gradient of a batch in which a sample lies on a limit: there the map from free outputs to outputs
-     * is the projection's, whose gradient is not available yet. Samples strictly inside every limit are plain
-     * completions, whose gradient is exact.
+     * Turns the completion's gradients of a batch into the gradients through the limits: unchanged for a sample
+     * inside every limit, projected onto the active limits' null space for a sample on one ({@link LimitGradient}).
      *
-     * @throws UnsupportedOperationException naming the first such sample and limit
+     * @param x    inputs of the forward call; read only
+     * @param full the full rows the forward call returned, declared order; read only
+     * @param gz   modified: the completion's ḡ on the free outputs on entry, the gradient through the limits on return
+     * @param gx   optional, modified likewise for the inputs
      */
-    public void refuseGradientOnLimits(double[] x, int batch, double[] full) {
-        evaluateExpressions(x, batch, full);
-        for (int s = 0; s < batch; s++) {
-            for (int j = 0; j < m; j++) {
-                int o = single[j];
-                boolean on = o >= 0
-                        ? Math.abs(full[s * p + o] - bound[j]) <= SNAP * (Math.abs(bound[j]) + limits.scales()[o])
-                        : Math.abs(g[s * m + j]) <= SNAP * gScale[s * m + j];
-                if (on) {
-                    throw new UnsupportedOperationException("sample " + s + " lies on limit '"
-                            + limits.names().get(j) + "': gradients through limits are not available yet; limits"
-                            + " are enforced in forward passes (inference, lawful complete), not in training");
-                }
-            }
-        }
+    public void gradients(double[] x, int batch, double[] full, double[] gz, double[] gx) {
+        gradient.correct(x, batch, full, gz, gx);
     }
 }
