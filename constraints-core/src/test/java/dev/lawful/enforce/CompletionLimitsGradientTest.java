@@ -74,6 +74,29 @@ class CompletionLimitsGradientTest {
     }
 
     @Test
+    void outputsOfUnequalSizesKeepTheGradientOfTheForwardMap() {
+        // the metric Σ ((y* − y)/size)² with sizes far from one another, as a folded normalizer gives
+        Completion c = Completion.builder(LawSet.parse("<reformer>", REFORMER))
+                .limitScales(0.3, 2, 1, 0.05, 4, 1).build();
+        SplittableRandom r = new SplittableRandom(4);
+        int compared = 0;
+        for (int trial = 0; trial < 400 && compared < 40; trial++) {
+            double[] feed = new double[6];
+            for (int i = 0; i < 6; i++) {
+                feed[i] = 0.05 + r.nextDouble();
+            }
+            double[] z = {r.nextDouble() * 2, r.nextDouble() * 2};
+            if (compare(c, feed, z, true)) {
+                compared++;
+            }
+        }
+        assertTrue(compared >= 40, "only " + compared + " samples on a limit away from a switch");
+        Completion column = Completion.builder(LawSet.parse("<column>", column(false)))
+                .limitScales(1e-6, 3e-6, 1e-4).build();
+        assertEquals(20, comparedColumns(column, 4, true));
+    }
+
+    @Test
     void aColumnThatWouldDryOrRainNegativeHasTheGradientOfTheForwardMap() {
         Completion c = Completion.of(LawSet.parse("<column>", column(false)));
         assertEquals(Tier.CONSTANT_AFFINE, c.tier());

@@ -135,7 +135,9 @@ public class LawLayer extends NoParamLayer {
                     + " layer in a MultiLayerNetwork sees only the previous layer's activations; use LawVertex in a"
                     + " ComputationGraph (ConstrainedGraph wires it), which receives the network inputs as well");
         }
-        return c;
+        // limits move a sample the least in the normalised units the loss sees
+        Scaling out = checkedOutputScaling(c);
+        return out == null ? c : spec.completion(out.getScale());
     }
 
     /** @return how messages name this layer */

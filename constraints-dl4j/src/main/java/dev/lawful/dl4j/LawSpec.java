@@ -6,7 +6,6 @@ import dev.lawful.enforce.BoundCheck;
 import dev.lawful.enforce.Completion;
 import dev.lawful.enforce.OnBadSample;
 import java.util.Arrays;
-import java.util.List;
 import java.util.Objects;
 
 /**
@@ -28,6 +27,7 @@ public final class LawSpec implements java.io.Serializable {
     private boolean certifyWhileTraining;
     private transient volatile LawSet laws;
     private transient volatile Completion completion;
+    private transient volatile Sized sized;
 
     /** For the JSON mapper; use {@link #of(String)} or {@link #of(LawSet)}. */
     public LawSpec() {
@@ -60,6 +60,7 @@ public final class LawSpec implements java.io.Serializable {
         this.lawText = Objects.requireNonNull(lawText, "lawText");
         this.laws = null;
         this.completion = null;
+        this.sized = null;
     }
 
     /** @return the name diagnostics show for the law text */
@@ -72,6 +73,7 @@ public final class LawSpec implements java.io.Serializable {
         this.sourceName = Objects.requireNonNull(sourceName, "sourceName");
         this.laws = null;
         this.completion = null;
+        this.sized = null;
     }
 
     /** @return the completed output elements ({@code name} or {@code name[i]}), or null to use the law text's choice */
@@ -83,6 +85,7 @@ public final class LawSpec implements java.io.Serializable {
     public void setCompleted(String[] completed) {
         this.completed = completed == null ? null : completed.clone();
         this.completion = null;
+        this.sized = null;
     }
 
     /** @return whether bad samples give NaN rows ({@link OnBadSample#MASK}) rather than an exception */
@@ -94,6 +97,7 @@ public final class LawSpec implements java.io.Serializable {
     public void setMaskBadSamples(boolean maskBadSamples) {
         this.maskBadSamples = maskBadSamples;
         this.completion = null;
+        this.sized = null;
     }
 
     /**
@@ -139,36 +143,58 @@ public final class LawSpec implements java.io.Serializable {
     }
 
     /**
-     * @return the completion of the law set (built on first use, then shared: it is immutable and thread-safe)
+     * @return the completion of the law set (built on first use, then shared: it is immutable and thread-safe); its
+     *         limits, if any, move outputs in the metric of one unit per declared unit (see
+     *         {@link #completion(double[])} for the metric of normalised outputs)
      * @throws LawException when the laws cannot be completed as asked
      */
     public Completion completion() {
         Completion c = completion;
         if (c == null) {
-            refuseLimits(lawSet());
-            Completion.Builder b = Completion.builder(lawSet())
-                    .onBadSample(maskBadSamples ? OnBadSample.MASK : OnBadSample.THROW);
-            if (completed != null) {
-                b.complete(completed);
-            }
-            c = b.build();
+            c = build(null);
             completion = c;
         }
         return c;
     }
 
     /**
-     * The layers cannot train through limits yet (the gradient on an active limit is not available), and a layer
-     * that silently ignored them would hand out outputs outside them: a law set with limits is refused by name.
+     * The completion with its limits' metric set to the outputs' sizes (see
+     * {@link Completion.Builder#limitScales(double...)}): a layer that folds a normalizer passes each output's
+     * scale, so that a sample outside a limit moves the least in the normalised units its loss sees. Equal to
+     * {@link #completion()} when the law set has no limits or {@code outputSizes} is null.
+     *
+     * @param outputSizes per declared output, its size in its declared unit (a normalizer's standard deviation or
+     *                    range), or null
+     * @return the completion (cached for the last sizes asked)
+     * @throws LawException when the laws cannot be completed as asked
+     * @throws IllegalArgumentException when a size is not finite and positive or their number is not the outputs'
      */
-    private static void refuseLimits(LawSet laws) {
-        if (!laws.limits().isEmpty()) {
-            List<String> names = laws.limits().stream().map(l -> "'" + l.name() + "'").toList();
-            throw laws.problem(laws.limits().get(0), "the law set declares limits (" + String.join(", ", names)
-                    + "); the Deeplearning4j layers do not enforce limits yet: train with a law file without the limit"
-                    + " statements, and keep outputs inside the limits at inference with Completion.forward or lawful"
-                    + " complete on the same law file with its limits");
+    public Completion completion(double[] outputSizes) {
+        if (outputSizes == null || lawSet().limits().isEmpty()) {
+            return completion();
         }
+        Sized s = sized;
+        if (s == null || !Arrays.equals(s.sizes, outputSizes)) {
+            s = new Sized(outputSizes.clone(), build(outputSizes));
+            sized = s;
+        }
+        return s.completion;
+    }
+
+    private Completion build(double[] outputSizes) {
+        Completion.Builder b = Completion.builder(lawSet())
+                .onBadSample(maskBadSamples ? OnBadSample.MASK : OnBadSample.THROW);
+        if (completed != null) {
+            b.complete(completed);
+        }
+        if (outputSizes != null) {
+            b.limitScales(outputSizes);
+        }
+        return b.build();
+    }
+
+    /** A completion built for one set of output sizes. */
+    private record Sized(double[] sizes, Completion completion) {
     }
 
     @Override

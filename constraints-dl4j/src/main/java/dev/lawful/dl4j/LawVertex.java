@@ -139,7 +139,10 @@ public class LawVertex extends GraphVertex {
         if (spec == null) {
             throw new IllegalStateException("law vertex has no laws; construct it with new LawVertex(LawSpec)");
         }
-        return spec.completion();
+        Completion c = spec.completion();
+        // limits move a sample the least in the normalised units the loss sees
+        Scaling out = checkedOutputScaling(c);
+        return out == null ? c : spec.completion(out.getScale());
     }
 
     /** @return a deep copy */

@@ -210,9 +210,9 @@ final class NdArrays {
     }
 
     /**
-     * @return the normalised outputs, (y − offset)/scale per declared column, except that the free columns take the
-     *         normalised free outputs {@code zn} unchanged (the same values, with no round trip through physical
-     *         units)
+     * @return the normalised outputs, (y − offset)/scale per declared column, except that a free column the
+     *         completion left as given takes the normalised free output {@code zn} unchanged (the same value, with no
+     *         round trip through physical units); a free output a limit moved is normalised like the others
      */
     static double[] normalisedOutputs(Scaling out, int[] free, double[] y, double[] zn, int batch) {
         int p = out.width();
@@ -223,7 +223,12 @@ final class NdArrays {
                 yn[s * p + j] = (y[s * p + j] - out.offset(j)) / out.scale(j);
             }
             for (int f = 0; f < nf; f++) {
-                yn[s * p + free[f]] = zn[s * nf + f];
+                int j = free[f];
+                double given = zn[s * nf + f];
+                // the physical value the completion was given (as physicalFree computes it): unchanged unless moved
+                if (y[s * p + j] == out.scale(j) * given + out.offset(j)) {
+                    yn[s * p + j] = given;
+                }
             }
         }
         return yn;

@@ -124,7 +124,7 @@ class NormalizedTrainingTest {
     }
 
     /** Fits {@code normalizer} (with labels) on an iterator over {@code physical}; returns a normalised copy. */
-    private static DataSet fitAndNormalise(DataNormalization normalizer, DataSet physical) {
+    static DataSet fitAndNormalise(DataNormalization normalizer, DataSet physical) {
         normalizer.fitLabel(true);
         normalizer.fit(new ListDataSetIterator<>(List.of(physical), SAMPLES));
         DataSet normalised = physical.copy();
