@@ -14,13 +14,16 @@ import dev.lawful.algebra.LawSet;
  * The soft alternative to enforcement, for honest comparison: a loss term that makes violations small on
  * average instead of removing them. Per sample
  * <pre>
- *   P = Σ_i w_i (r_i / u_i)²
+ *   P = Σ_i w_i (r_i / u_i)²  +  Σ_j (min(0, g_j) / u_j)²
  * </pre>
  * over the scalar laws i, where r_i = C_i(x, y) is the residual in coherent SI units (from {@link LawEvaluator}),
  * u_i the SI factor of the unit the law reports residuals in ({@link LawSet#lawUnit(String)}, so r_i / u_i is the
  * residual in that unit, for example kmol/h) and w_i a per-law weight (default 1). P is dimensionless once the
  * weights are: a weight is in 1/(law unit)². The batch value is the sum (not the mean) of the per-sample values.
- * Its gradient is dP/dy = Σ_i 2 w_i (r_i / u_i²) ∂C_i/∂y, and the same with ∂C_i/∂x for the inputs.
+ * Its gradient is dP/dy = Σ_i 2 w_i (r_i / u_i²) ∂C_i/∂y, and the same with ∂C_i/∂x for the inputs. When the
+ * law set declares limits g_j ≥ 0, each scalar limit adds its squared violation in its own unit u_j (weight 1, so
+ * the soft comparison is penalised for leaving a limit as the exact layer is kept inside it); a limit that holds
+ * adds nothing.
  *
  * <p>Works for any law set, affine or not. There is no bad-sample policy: as for any loss, a non-finite input or
  * output gives a non-finite value. Batches are flat row-major arrays in declared units, processed in chunks of
@@ -35,17 +38,11 @@ public final class Penalty {
     private final int nIn;
     private final int p;
     private final int n;
-    private final int nnzY;
-    private final int nnzX;
-    private final int[] yStart;
-    private final int[] yColumns;
-    private final int[] xStart;
-    private final int[] xColumns;
     private final double[] weights;
-    /** w_i / u_i²: P = Σ c_i r_i², dP/dr_i = 2 c_i r_i. */
-    private final double[] coefficient;
-    /** √w_i / u_i: ρ_i = root_i r_i, P = Σ ρ_i². */
-    private final double[] root;
+    private final PenaltyTerms lawTerms;
+    /** The limits' violations, or null when the law set has none. */
+    private final PenaltyTerms limitTerms;
+    private final int terms;
 
     /** Work arrays for one thread; get one from {@link #newWorkspace()}. Not thread-safe. */
     public static final class Workspace {
@@ -56,6 +53,10 @@ public final class Penalty {
         private final double[] res;
         private final double[] jy;
         private final double[] jx;
+        private final LawEvaluator.Workspace limitEval;
+        private final double[] limitRes;
+        private final double[] limitJy;
+        private final double[] limitJx;
         private final double[] values = new double[CHUNK];
         private final double[] sum = new double[2];
         private final double[] gy;
@@ -67,8 +68,13 @@ public final class Penalty {
             x = new double[CHUNK * o.nIn];
             y = new double[CHUNK * o.p];
             res = new double[CHUNK * o.n];
-            jy = new double[CHUNK * o.nnzY];
-            jx = new double[CHUNK * o.nnzX];
+            jy = new double[CHUNK * o.lawTerms.nnzY];
+            jx = new double[CHUNK * o.lawTerms.nnzX];
+            PenaltyTerms l = o.limitTerms;
+            limitEval = l == null ? null : l.evaluator.newWorkspace();
+            limitRes = l == null ? null : new double[CHUNK * l.count];
+            limitJy = l == null ? null : new double[CHUNK * l.nnzY];
+            limitJx = l == null ? null : new double[CHUNK * l.nnzX];
             gy = new double[CHUNK * o.p];
             gx = new double[CHUNK * o.nIn];
         }
@@ -81,19 +87,12 @@ public final class Penalty {
         this.nIn = laws.inputWidth();
         this.p = laws.outputWidth();
         this.n = evaluator.lawCount();
-        this.nnzY = evaluator.outputNonzeros();
-        this.nnzX = evaluator.inputNonzeros();
         if (w != null && w.length != n) {
             throw new IllegalArgumentException("law weights must hold one value per scalar law (" + n + "), found "
                     + w.length);
         }
         this.weights = new double[n];
-        this.coefficient = new double[n];
-        this.root = new double[n];
-        this.yStart = new int[n + 1];
-        this.xStart = new int[n + 1];
-        this.yColumns = new int[nnzY];
-        this.xColumns = new int[nnzX];
+        double[] units = new double[n];
         for (int i = 0; i < n; i++) {
             double wi = w == null ? 1.0 : w[i];
             if (!(wi >= 0) || wi == Double.POSITIVE_INFINITY) {
@@ -101,16 +100,22 @@ public final class Penalty {
                         + " negative, found " + wi);
             }
             weights[i] = wi;
-            double u = laws.lawUnit(e.law(i).name()).factor();
-            coefficient[i] = wi / (u * u);
-            root[i] = Math.sqrt(wi) / u;
-            int[] oc = evaluator.outputColumns(i);
-            System.arraycopy(oc, 0, yColumns, evaluator.outputOffset(i), oc.length);
-            yStart[i + 1] = evaluator.outputOffset(i) + oc.length;
-            int[] ic = evaluator.inputColumns(i);
-            System.arraycopy(ic, 0, xColumns, evaluator.inputOffset(i), ic.length);
-            xStart[i + 1] = evaluator.inputOffset(i) + ic.length;
+            units[i] = laws.lawUnit(e.law(i).name()).factor();
         }
+        this.lawTerms = new PenaltyTerms(evaluator, weights, units, false);
+        int m = e.limitCount();
+        if (m == 0) {
+            this.limitTerms = null;
+        } else {
+            double[] ones = new double[m];
+            double[] limitUnits = new double[m];
+            for (int j = 0; j < m; j++) {
+                ones[j] = 1;
+                limitUnits[j] = e.limit(j).unit().factor();
+            }
+            this.limitTerms = new PenaltyTerms(e.limitEvaluator(), ones, limitUnits, true);
+        }
+        this.terms = n + m;
     }
 
     /**
@@ -254,35 +259,48 @@ public final class Penalty {
 
     // ---- weighted residuals ------------------------------------------------------------------------------------
 
-    /** @return the number of scalar laws m, the width of {@link #weightedResiduals} per sample */
+    /** @return the number of scalar laws */
     public int lawCount() {
         return n;
     }
 
     /**
-     * The weighted residuals whose squares add up to the penalty: {@code ρ_i = √w_i · r_i / u_i} per sample and
-     * scalar law, so that P = Σ_i ρ_i². A network can emit ρ as an extra output trained towards 0 with a
-     * sum-of-squares loss, which adds exactly P to its score.
+     * @return the width of {@link #weightedResiduals} per sample: one term per scalar law, then one per scalar limit
+     *         of the law set ({@link dev.lawful.algebra.ExpandedLaws#limit(int)} order)
+     */
+    public int termCount() {
+        return terms;
+    }
+
+    /**
+     * The weighted terms whose squares add up to the penalty: {@code ρ_i = √w_i · r_i / u_i} per sample and scalar
+     * law, then {@code ρ_j = min(0, g_j) / u_j} per scalar limit g_j ≥ 0 (its violation in its unit), so that P =
+     * Σ ρ². A network can emit ρ as an extra output trained towards 0 with a sum-of-squares loss, which adds exactly
+     * P to its score.
      *
      * @param x         inputs in declared units (may be null when there are none); not modified
      * @param y         outputs in declared units; not modified
      * @param batch     number of samples
-     * @param rho       output buffer of {@code batch * lawCount()} values, row-major (modified)
+     * @param rho       output buffer of {@code batch * termCount()} values, row-major (modified)
      * @param workspace this thread's work arrays, or null to allocate them for this call
      * @throws IllegalArgumentException when an array is shorter than the batch needs
      */
     public void weightedResiduals(double[] x, double[] y, int batch, double[] rho, Workspace workspace) {
         check(batch, length(x), length(y), -2, -2, -2);
-        need("rho", length(rho), (long) batch * n);
+        need("rho", length(rho), (long) batch * terms);
         Workspace ws = mine(workspace);
         for (int s0 = 0; s0 < batch; s0 += CHUNK) {
             int m = Math.min(CHUNK, batch - s0);
             load(x, s0 * nIn, ws.x, m * nIn);
             load(y, s0 * p, ws.y, m * p);
             evaluator.residuals(ws.x, ws.y, m, ws.res, null, ws.eval);
+            if (limitTerms != null) {
+                limitTerms.evaluator.residuals(ws.x, ws.y, m, ws.limitRes, null, ws.limitEval);
+            }
             for (int j = 0; j < m; j++) {
-                for (int i = 0; i < n; i++) {
-                    rho[(s0 + j) * n + i] = root[i] * ws.res[j * n + i];
+                lawTerms.rho(j, ws.res, rho, (s0 + j) * terms);
+                if (limitTerms != null) {
+                    limitTerms.rho(j, ws.limitRes, rho, (s0 + j) * terms + n);
                 }
             }
         }
@@ -290,11 +308,12 @@ public final class Penalty {
 
     /**
      * The vector-Jacobian product of {@link #weightedResiduals}: given upstream gradients ḡ on ρ, per sample
-     * {@code gy = Σ_i ḡ_i (√w_i / u_i) ∂C_i/∂y} and the same with ∂C_i/∂x into {@code gx}.
+     * {@code gy = Σ_i ḡ_i ∂ρ_i/∂y} and the same with ∂/∂x into {@code gx} (a limit's term has slope zero where it
+     * holds, the one-sided choice at g = 0 included).
      *
      * @param x         inputs in declared units (may be null when there are none); not modified
      * @param y         outputs in declared units; not modified
-     * @param gRho      upstream gradients, {@code batch * lawCount()} values; not modified
+     * @param gRho      upstream gradients, {@code batch * termCount()} values; not modified
      * @param batch     number of samples
      * @param gy        output buffer of {@code batch * outputWidth} values (overwritten), or null to skip it
      * @param gx        output buffer of {@code batch * inputWidth} values (overwritten), or null to skip it
@@ -304,7 +323,7 @@ public final class Penalty {
     public void weightedResidualsBackward(double[] x, double[] y, double[] gRho, int batch, double[] gy, double[] gx,
             Workspace workspace) {
         check(batch, length(x), length(y), -2, gy == null ? -2 : gy.length, gx == null ? -2 : gx.length);
-        need("gRho", length(gRho), (long) batch * n);
+        need("gRho", length(gRho), (long) batch * terms);
         Workspace ws = mine(workspace);
         for (int s0 = 0; s0 < batch; s0 += CHUNK) {
             int m = Math.min(CHUNK, batch - s0);
@@ -312,6 +331,10 @@ public final class Penalty {
             load(y, s0 * p, ws.y, m * p);
             evaluator.evaluate(ws.x, ws.y, m, null, null, gy != null ? ws.jy : null, gx != null ? ws.jx : null,
                     ws.eval);
+            if (limitTerms != null) {
+                limitTerms.evaluator.evaluate(ws.x, ws.y, m, ws.limitRes, null, gy != null ? ws.limitJy : null,
+                        gx != null ? ws.limitJx : null, ws.limitEval);
+            }
             if (gy != null) {
                 Arrays.fill(gy, s0 * p, (s0 + m) * p, 0.0);
             }
@@ -320,18 +343,10 @@ public final class Penalty {
             }
             for (int j = 0; j < m; j++) {
                 int s = s0 + j;
-                for (int i = 0; i < n; i++) {
-                    double g = gRho[s * n + i] * root[i];
-                    if (gy != null) {
-                        for (int e = yStart[i]; e < yStart[i + 1]; e++) {
-                            gy[s * p + yColumns[e]] += g * ws.jy[j * nnzY + e];
-                        }
-                    }
-                    if (gx != null) {
-                        for (int e = xStart[i]; e < xStart[i + 1]; e++) {
-                            gx[s * nIn + xColumns[e]] += g * ws.jx[j * nnzX + e];
-                        }
-                    }
+                lawTerms.rhoBackward(j, null, gRho, s * terms, ws.jy, ws.jx, gy, p, gx, nIn, s);
+                if (limitTerms != null) {
+                    limitTerms.rhoBackward(j, ws.limitRes, gRho, s * terms + n, ws.limitJy, ws.limitJx, gy, p, gx,
+                            nIn, s);
                 }
             }
         }
@@ -370,31 +385,24 @@ public final class Penalty {
     /** Per-sample values into {@code ws.values}, and the gradients asked for into {@code ws.gy}, {@code ws.gx}. */
     private void chunk(Workspace ws, int m, boolean withY, boolean withX) {
         evaluator.evaluate(ws.x, ws.y, m, ws.res, null, withY ? ws.jy : null, withX ? ws.jx : null, ws.eval);
+        if (limitTerms != null) {
+            limitTerms.evaluator.evaluate(ws.x, ws.y, m, ws.limitRes, null, withY ? ws.limitJy : null,
+                    withX ? ws.limitJx : null, ws.limitEval);
+        }
         if (withY) {
             Arrays.fill(ws.gy, 0, m * p, 0.0);
         }
         if (withX) {
             Arrays.fill(ws.gx, 0, m * nIn, 0.0);
         }
+        double[] gy = withY ? ws.gy : null;
+        double[] gx = withX ? ws.gx : null;
+        Arrays.fill(ws.values, 0, m, 0.0);
         for (int j = 0; j < m; j++) {
-            double v = 0;
-            for (int i = 0; i < n; i++) {
-                double r = ws.res[j * n + i];
-                double c = coefficient[i];
-                v += c * r * r;
-                double dr = 2 * c * r;
-                if (withY) {
-                    for (int e = yStart[i]; e < yStart[i + 1]; e++) {
-                        ws.gy[j * p + yColumns[e]] += dr * ws.jy[j * nnzY + e];
-                    }
-                }
-                if (withX) {
-                    for (int e = xStart[i]; e < xStart[i + 1]; e++) {
-                        ws.gx[j * nIn + xColumns[e]] += dr * ws.jx[j * nnzX + e];
-                    }
-                }
+            lawTerms.add(j, ws.res, ws.jy, ws.jx, ws.values, gy, p, gx, nIn);
+            if (limitTerms != null) {
+                limitTerms.add(j, ws.limitRes, ws.limitJy, ws.limitJx, ws.values, gy, p, gx, nIn);
             }
-            ws.values[j] = v;
         }
     }
 

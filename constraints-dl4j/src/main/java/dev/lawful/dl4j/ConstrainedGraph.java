@@ -68,14 +68,16 @@ public final class ConstrainedGraph {
     /** Settings of a constrained graph; every setting has a default. */
     /**
      * The training data of a penalised graph ({@link Builder#buildPenalized(double)}): the features, the labels for
-     * the predictions and zero labels ({@code [batch, lawCount]}, the labels' data type) for the weighted residuals.
+     * the predictions and zero labels ({@code [batch, terms]}: one per scalar law and per scalar limit, the labels' data type) for
+     * the weighted residuals.
      *
      * @param spec the laws the graph penalises
      * @param data features (the law inputs) and labels (all outputs, declared order)
      * @return a two-output data set; the label mask, if any, applies to both outputs
      */
     public static MultiDataSet penaltyData(LawSpec spec, DataSet data) {
-        int m = spec.lawSet().evaluator().lawCount();
+        // one weighted term per scalar law and per scalar limit (Penalty#termCount)
+        int m = spec.lawSet().evaluator().lawCount() + spec.lawSet().expand().limitCount();
         INDArray labels = data.getLabels();
         INDArray zeros = Nd4j.zeros(labels.dataType(), labels.size(0), m);
         INDArray mask = data.getLabelsMaskArray();

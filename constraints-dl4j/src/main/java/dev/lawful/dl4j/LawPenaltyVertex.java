@@ -252,7 +252,7 @@ public class LawPenaltyVertex extends GraphVertex {
         NdArrays.checkFeedForward(WHO, vertexInputs[count - 1], laws.outputWidth(),
                 "input " + (count - 1) + " (the predicted outputs)",
                 laws.outputNames(), "give the head one output per declared output, in declared order");
-        return InputType.feedForward(pe.lawCount());
+        return InputType.feedForward(pe.termCount());
     }
 
     /** @return a report of no parameters and one activation array of the law count per example */

@@ -92,7 +92,7 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
         return null;
     }
 
-    /** @return the weighted residuals, {@code [batch, lawCount]} */
+    /** @return the weighted terms, {@code [batch, termCount]} (laws, then limits) */
     @Override
     public INDArray doForward(boolean training, LayerWorkspaceMgr workspaceMgr) {
         if (!canDoForward()) {
@@ -101,7 +101,7 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
         Penalty pe = config.penalty();
         int[] batch = new int[1];
         double[][] xy = physical(pe, batch);
-        int m = pe.lawCount();
+        int m = pe.termCount();
         double[] rho = new double[batch[0] * m];
         pe.weightedResiduals(xy[0], xy[1], batch[0], rho, state.workspace(pe));
         double root = Math.sqrt(config.getPenaltyWeight());
@@ -122,7 +122,7 @@ public class LawPenaltyVertexImpl extends BaseGraphVertex {
         int[] b = new int[1];
         double[][] xy = physical(pe, b);
         int batch = b[0];
-        int m = pe.lawCount();
+        int m = pe.termCount();
         NdArrays.batch(epsilon, who(), "the gradient on its output", m, java.util.Collections.nCopies(m, "residual"),
                 "the layer after it must take all " + m + " weighted residuals");
         double[] g = NdArrays.toDouble(epsilon);
