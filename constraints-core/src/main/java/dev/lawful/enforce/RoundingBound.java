@@ -12,7 +12,8 @@ import dev.lawful.algebra.LawEvaluator;
  * where s_i is the law's natural scale, d_i its rounding depth ({@link ExpandedLaws}) and e_j a bound on the
  * absolute error added to the completed output j after enforcement: 0 for the double entry points, ½·ulp_f32(y_j)
  * when the outputs were rounded to float, σ_j times that (plus the double rounding of the map) when a network emitted
- * them normalised in float. The last sum is for inputs the completion saw rounded (a float network sees its inputs
+ * them normalised in float. When the law set declares limits, the first sum runs over every output: a limit may move
+ * a sample's free outputs, which are then rounded like the completed ones. The last sum is for inputs the completion saw rounded (a float network sees its inputs
  * as floats): e_x,k bounds the difference between the input given here and the one the laws were enforced for.
  * Everything is evaluated at the given inputs and outputs with the law set's own evaluator.
  *
@@ -32,6 +33,10 @@ public final class RoundingBound {
         this.completed = new boolean[c.outputWidth()];
         for (int o : c.completedOutputs()) {
             completed[o] = true;
+        }
+        if (!c.laws().limits().isEmpty()) {
+            // a limit may move free outputs: the enforcement computed them, and their rounding counts too
+            java.util.Arrays.fill(completed, true);
         }
     }
 
@@ -76,7 +81,7 @@ public final class RoundingBound {
      * @param y           outputs, {@code batch × outputWidth} in declared units and order
      * @param batch       number of samples
      * @param outputError e, {@code batch × outputWidth} absolute error bounds added after enforcement (only the
-     *                    completed columns are read), or null for outputs straight from the double entry points
+     *                    completed columns are read, every column when the law set declares limits), or null for outputs straight from the double entry points
      * @param residuals   output buffer of {@code batch × lawCount()} residuals C_i in coherent SI units (modified)
      * @param bounds      output buffer of {@code batch × lawCount()} bounds b_i, SI units (modified)
      * @return the number of samples with at least one law outside its bound (a non-finite residual counts as

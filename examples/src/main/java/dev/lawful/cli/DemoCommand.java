@@ -125,7 +125,7 @@ public final class DemoCommand implements Callable<Integer> {
             }
             o.println();
             o.flush();
-            if (!report.exactWithinBound()) {
+            if (!report.exactWithinBound() || !report.exactInsideLimits()) {
                 status = Lawful.EXIT_INVALID;
             }
         }

@@ -80,7 +80,41 @@ public final class DemoReport {
             sb.append(String.format(Locale.ROOT, "%n  the exact network missed the bound: this is a defect, please"
                     + " report it with the command you ran"));
         }
+        sb.append(limitLines("%n"));
+        if (!exactInsideLimits()) {
+            sb.append(String.format(Locale.ROOT, "%n  the exact network left a limit: this is a defect, please report"
+                    + " it with the command you ran"));
+        }
         return sb.toString();
+    }
+
+    /**
+     * @return per limit of the law file and network, the test rows outside it (beyond float32 rounding) and the
+     *         worst violation in the limit's unit; empty when the law file has none
+     */
+    private String limitLines(String newline) {
+        StringBuilder sb = new StringBuilder();
+        List<ScenarioTrainer.Network> nets = outcome.networks();
+        LimitTally first = nets.get(0).limits();
+        for (int c = 0; c < first.names().size(); c++) {
+            sb.append(String.format(Locale.ROOT, newline + "Test rows outside limit '%s' (worst violation, %s):",
+                    first.names().get(c), first.units().get(c)));
+            for (ScenarioTrainer.Network n : nets) {
+                sb.append(String.format(Locale.ROOT, newline + "  %-14s %d of %d (%.3g)", n.label(),
+                        n.limits().outside()[c], outcome.testRows(), n.limits().worst()[c]));
+            }
+        }
+        return sb.toString();
+    }
+
+    /** @return true when the exact network kept every test row inside every limit (beyond float32 rounding) */
+    public boolean exactInsideLimits() {
+        for (ScenarioTrainer.Network n : outcome.networks()) {
+            if (n.label().equals(ScenarioTrainer.EXACT)) {
+                return java.util.Arrays.stream(n.limits().outside()).allMatch(v -> v == 0);
+            }
+        }
+        return false;
     }
 
     /**
@@ -120,6 +154,7 @@ public final class DemoReport {
             }
             sb.append(". ");
         }
+        sb.append(limitLines(" "));
         return sb.toString().strip();
     }
 }

@@ -68,9 +68,10 @@ public final class ScenarioTrainer {
      * @param secondsPerEpoch mean wall time of a training epoch, the first left out when there are several (it also
      *                        pays for compiling the code)
      * @param sideCheckMax    for each of the scenario's side checks, the largest |value| over the test rows
+     * @param limits          the test rows outside each limit of the law file, and the worst violation
      */
     public record Network(String label, double[] predicted, double[] residuals, int outsideBound,
-            double[] lossPerEpoch, double secondsPerEpoch, double[] sideCheckMax) {
+            double[] lossPerEpoch, double secondsPerEpoch, double[] sideCheckMax, LimitTally limits) {
     }
 
     /**
@@ -193,8 +194,11 @@ public final class ScenarioTrainer {
             double[] y = out.toPhysical(yn, test);
             double[] residuals = new double[test * m];
             double[] bounds = new double[test * m];
-            int outside = RoundingBound.of(completion).evaluate(testX, in.floatOutputError(in.toNormalised(testX,
-                    test), test), y, test, out.floatOutputError(yn, test), residuals, bounds);
+            double[] xRounding = in.floatOutputError(in.toNormalised(testX, test), test);
+            double[] yRounding = out.floatOutputError(yn, test);
+            int outside = RoundingBound.of(completion).evaluate(testX, xRounding, y, test, yRounding, residuals,
+                    bounds);
+            LimitTally limits = LimitTally.of(laws, testX, y, yRounding, xRounding, test);
             for (int s = 0; s < test; s++) {
                 for (int i = 0; i < m; i++) {
                     residuals[s * m + i] /= factor[i];
@@ -207,7 +211,7 @@ public final class ScenarioTrainer {
                     sideMax[c] = Math.max(sideMax[c], Math.abs(checks.get(c).function().apply(testX, s * k, y, s * p)));
                 }
             }
-            networks.add(new Network(label, y, residuals, outside, fit[0], fit[1][0], sideMax));
+            networks.add(new Network(label, y, residuals, outside, fit[0], fit[1][0], sideMax, limits));
         }
         List<TruthModel.LawMark> marks = new ArrayList<>();
         List<TruthModel.LawMark> given = truth.lawMarks();
