@@ -68,6 +68,22 @@ class CompletionLimitsTest {
     }
 
     @Test
+    void aCompletionThatMissesItsLimitByRoundingOnlySitsExactlyOnItAndKeepsItsFreeOutputs() {
+        // 0.1 + 0.2 and 0.3 differ in binary floating point (IEEE 754 doubles; common practice), so completing
+        // c = x − a − b for a split that has nothing left over gives a rounding-sized negative c
+        Completion plain = Completion.of(split(""));
+        double[] y0 = new double[3];
+        plain.forward(new double[] {0.3}, new double[] {0.1, 0.2}, 1, y0, null, null);
+        assertTrue(y0[2] < 0 && y0[2] > -1e-15, "the plain completion's c: " + y0[2]);
+        Completion c = Completion.of(split("limit dry: c >= 0\n"));
+        double[] y = new double[3];
+        c.forward(new double[] {0.3}, new double[] {0.1, 0.2}, 1, y, null, null);
+        // the balance holds to its bound with c = 0 exactly, so no free output needs to move
+        assertArrayEquals(new double[] {0.1, 0.2, 0.0}, y, 0.0);
+        assertEquals(0.0, 1 / y[2] > 0 ? 0.0 : 1.0, "c is +0.0");
+    }
+
+    @Test
     void aFreeOutputAboveItsLimitIsSetToItExactly() {
         Completion c = Completion.of(split("const top = 0.25 kg/s\nlimit cap: a <= top\n"));
         double[] y = new double[3];

@@ -51,6 +51,7 @@ public final class LimitStep {
     private final double[] zs;
     private final double[] us;
     private final double[] ys;
+    private final double[] backup;
     private final byte[] st1 = new byte[1];
     private final double[] bqp;
     private final double[] magnitude;
@@ -87,6 +88,7 @@ public final class LimitStep {
         this.zs = new double[k];
         this.us = new double[k];
         this.ys = new double[p];
+        this.backup = new double[p];
         this.bqp = new double[m];
         this.magnitude = new double[m];
         this.lambda = new double[m];
@@ -168,6 +170,10 @@ public final class LimitStep {
         for (int f = 0; f < k; f++) {
             zs[f] = ys[free[f]];
         }
+        if (settlesOnLimits(s)) {
+            System.arraycopy(ys, 0, full, s * p, p);
+            return SampleStatus.OK;
+        }
         for (int iteration = 0; iteration < limits.maxIterations(); iteration++) {
             if (!lin.linearise(xs, ys, false)) {
                 return SampleStatus.SINGULAR;
@@ -232,6 +238,39 @@ public final class LimitStep {
                 }
             }
         }
+    }
+
+    /**
+     * A completion that misses only limits of completed outputs by a constant, each by no more than the laws'
+     * rounding allows, is settled by setting those outputs to their limits: when every law still holds to its
+     * documented bound there (the certificate decides, not a guess at the size of the rounding), the sample keeps its
+     * free outputs and sits exactly on its limits. A truth row with no rain then completes to no rain, not to a
+     * margin above it.
+     *
+     * @return whether the current row was settled (ys then holds it); otherwise ys is unchanged
+     */
+    private boolean settlesOnLimits(int s) {
+        boolean changed = false;
+        for (int j = 0; j < m; j++) {
+            int o = single[j];
+            boolean expressionOutside = o < 0 && !(g[s * m + j] >= -3 * EPS * gScale[s * m + j]);
+            if (expressionOutside || (o >= 0 && wrongSide(j, ys[o]) && role[o] < 0)) {
+                return false;
+            }
+        }
+        System.arraycopy(ys, 0, backup, 0, p);
+        for (int j = 0; j < m; j++) {
+            int o = single[j];
+            if (o >= 0 && wrongSide(j, ys[o])) {
+                ys[o] = bound[j];
+                changed = true;
+            }
+        }
+        if (changed && lawsHold()) {
+            return true;
+        }
+        System.arraycopy(backup, 0, ys, 0, p);
+        return false;
     }
 
     /** @return whether a completed output was set to its limit (it was within rounding on the wrong side) */
