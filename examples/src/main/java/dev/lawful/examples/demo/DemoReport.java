@@ -1,5 +1,6 @@
 package dev.lawful.examples.demo;
 
+import dev.lawful.examples.report.DistributionPlot;
 import dev.lawful.examples.report.NetworkRun;
 import dev.lawful.examples.report.ReportWriter;
 import dev.lawful.examples.report.ScenarioResult;
@@ -125,7 +126,43 @@ public final class DemoReport {
      * @throws IOException when a file cannot be written
      */
     public List<Path> write(Path dir) throws IOException {
-        return writer.write(result, dir);
+        List<Path> files = new ArrayList<>(writer.write(result, dir));
+        int[] shown = limitedOutput();
+        if (shown != null) {
+            files.add(DistributionPlot.write(result, shown[0], outcome.laws().expand().limit(shown[1]).bound(), dir));
+        }
+        return List.copyOf(files);
+    }
+
+    /**
+     * @return the completed output bounded by a constant limit that the unconstrained network leaves most often,
+     *         and that limit's index, or null when no limit bounds a completed output by a constant
+     */
+    private int[] limitedOutput() {
+        dev.lawful.algebra.ExpandedLaws e = outcome.laws().expand();
+        int p = outcome.laws().outputWidth();
+        double[] free = outcome.networks().get(0).predicted();
+        int[] best = null;
+        int most = -1;
+        for (int j = 0; j < e.limitCount(); j++) {
+            dev.lawful.algebra.ScalarLimit l = e.limit(j);
+            int o = l.singleOutput();
+            boolean completed = o >= 0 && java.util.Arrays.stream(outcome.completion().completedOutputs())
+                    .anyMatch(c -> c == o);
+            if (!completed || Double.isNaN(l.bound())) {
+                continue;
+            }
+            int outside = 0;
+            for (int s = 0; s < outcome.testRows(); s++) {
+                double v = free[s * p + o];
+                outside += l.lower() ? (v < l.bound() ? 1 : 0) : (v > l.bound() ? 1 : 0);
+            }
+            if (outside > most) {
+                most = outside;
+                best = new int[] {o, j};
+            }
+        }
+        return best;
     }
 
     private String note() {

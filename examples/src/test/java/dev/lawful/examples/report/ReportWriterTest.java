@@ -73,6 +73,26 @@ class ReportWriterTest {
     }
 
     @Test
+    void theDistributionFigureDecodesAndItsBinsCountEveryRowOnce(@TempDir Path other) throws IOException {
+        Path png = DistributionPlot.write(RESULT, 0, 0.0, other);
+        BufferedImage image = ImageIO.read(png.toFile());
+        assertNotNull(image, png + " does not decode as an image");
+        assertEquals(1200, image.getWidth());
+        assertEquals(44 + 440, image.getHeight());
+        double[] v = {-1, 0, 0, 0.5, 2};
+        org.jfree.data.xy.XYSeries s = DistributionPlot.histogram("v", v, 1, 0, v.length, -1, 3.0 / DistributionPlot.BINS);
+        int total = 0;
+        for (int b = 0; b < DistributionPlot.BINS; b++) {
+            total += s.getY(b).intValue() - 1;
+        }
+        // every row in exactly one bin (counts are shown plus one, for the log axis); the largest in the last
+        assertEquals(v.length, total);
+        assertEquals(2, s.getY(0).intValue());
+        assertEquals(2, s.getY(DistributionPlot.BINS - 1).intValue());
+        assertEquals(3, s.getY(DistributionPlot.BINS / 3).intValue(), "the two zeros share the bin at 0");
+    }
+
+    @Test
     void aSinglePanelFigureIsOneColumnAndThreePanelsAreTwoRows() {
         assertEquals(44 + 440, Charts.height(1));
         assertEquals(1, Charts.columns(1));
