@@ -59,7 +59,7 @@ public class TrainingStepBench {
     static final int FEATURES = 64;
     static final int OUTPUTS = 60;
 
-    @Param({"none", "constant-affine", "affine", "nonlinear", "penalty"})
+    @Param({"none", "constant-affine", "affine", "nonlinear", "penalty", "constant-affine+limits"})
     public String laws;
 
     @Param({"headline", "small"})
@@ -69,8 +69,15 @@ public class TrainingStepBench {
     DataSet data;
     LawSet lawSet;
 
-    /** @return a law set of the given tier over 60 outputs with 4 laws completing y[0..3] */
+    /**
+     * @return a law set of the given tier over 60 outputs with 4 laws completing y[0..3]; {@code TIER+limits} adds a
+     *         limit on every output that no sample touches ({@code y >= -1e9}), to measure what limits cost when none
+     *         is touched
+     */
     static String lawText(String tier) {
+        if (tier.endsWith("+limits")) {
+            return lawText(tier.substring(0, tier.length() - "+limits".length())) + "limit floor: y >= -1e9\n";
+        }
         StringBuilder sb = new StringBuilder("output y[" + OUTPUTS + "]\n");
         for (int k = 0; k < 4; k++) {
             StringBuilder coefficients = new StringBuilder();
@@ -123,7 +130,7 @@ public class TrainingStepBench {
      * the free outputs, then the law layer of the tier ({@code none}: none, 60-wide head; {@code penalty}: the
      * soft-penalty loss on the constant-affine laws), then the loss layer.
      *
-     * @param laws  none, constant-affine, affine, nonlinear or penalty
+     * @param laws  none, constant-affine, affine, nonlinear, penalty or constant-affine+limits
      * @param shape headline, small or large
      * @return an initialised network (seed 42, Adam 1e-3, workspaces enabled)
      */

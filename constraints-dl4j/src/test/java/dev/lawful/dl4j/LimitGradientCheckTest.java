@@ -95,4 +95,61 @@ class LimitGradientCheckTest extends DoublePrecisionTest {
                 54, new double[] {1, 1, 1, 1}));
         assertTrue(check(layer, 54));
     }
+
+    /**
+     * Input-dependent coefficients (the affine tier), the law inputs straight from the graph input, so every
+     * parameter the checker perturbs is upstream of the free outputs, whose gradient through an active limit is
+     * exact in this tier (the input gradient is documented as leaving out the metric's change with the inputs).
+     */
+    @Test
+    void anAffineVertexOnActiveLimitsPassesTheGradientCheckOnItsFreeOutputs() {
+        for (boolean normalised : new boolean[] {false, true}) {
+            // limits where this seed's untrained outputs fall on both sides of them (physical units)
+            double low = normalised ? 0.7 : 0;
+            double cap = normalised ? 0.1 : -0.3;
+            LawVertex vertex = LawVertex.of(TestNets.X_AFFINE + "limit low: y[1] >= " + low + "\nlimit cap: y[0] <= "
+                    + cap + "\n");
+            Completion c = vertex.lawCompletion();
+            if (normalised) {
+                // fitted on data completed without the limits, so the limits cut into the outputs' range
+                vertex = vertex.normalizedWith(NormalizedGradientTest.fitted(true,
+                        LawVertex.of(TestNets.X_AFFINE).lawCompletion(), c.inputWidth(), 55, new double[] {1, 1, 1, 1}));
+            }
+            org.deeplearning4j.nn.conf.ComputationGraphConfiguration conf = TestNets.base(DataType.DOUBLE,
+                    new NoOp(), 55).graphBuilder()
+                    .addInputs("in")
+                    .addLayer("hidden", new org.deeplearning4j.nn.conf.layers.DenseLayer.Builder().nIn(2).nOut(5)
+                            .activation(org.nd4j.linalg.activations.Activation.TANH).build(), "in")
+                    .addLayer("head", new org.deeplearning4j.nn.conf.layers.DenseLayer.Builder().nIn(5)
+                            .nOut(c.freeWidth()).activation(org.nd4j.linalg.activations.Activation.IDENTITY).build(),
+                            "hidden")
+                    .addVertex("laws", vertex, "in", "head")
+                    .addLayer("loss", new org.deeplearning4j.nn.conf.layers.LossLayer.Builder(
+                            org.nd4j.linalg.lossfunctions.LossFunctions.LossFunction.MSE)
+                            .activation(org.nd4j.linalg.activations.Activation.IDENTITY).build(), "laws")
+                    .setOutputs("loss")
+                    .build();
+            ComputationGraph g = new ComputationGraph(conf);
+            g.init();
+            SplittableRandom r = new SplittableRandom(55);
+            INDArray in = TestNets.array(TestNets.uniform(r, 8, 2, -1, 1), DataType.DOUBLE);
+            INDArray labels = TestNets.array(TestNets.uniform(r, 8, c.outputWidth(), -1, 1), DataType.DOUBLE);
+            double[] y = TestNets.flat(g.outputSingle(in));
+            if (normalised) {
+                y = vertex.getOutputScaling().toPhysical(y, 8);
+            }
+            int on = 0;
+            for (int s = 0; s < 8; s++) {
+                on += Math.abs(y[s * 3 + 1] - low) <= 1e-9 || Math.abs(y[s * 3] - cap) <= 1e-9 ? 1 : 0;
+            }
+            assertTrue(on >= 2, "only " + on + " samples on a limit" + (normalised ? " (normalised)" : ""));
+            // Source: Deeplearning4j 1.0.0-M2.1 GradientCheckUtil (central finite differences on every parameter)
+            assertTrue(GradientCheckUtil.checkGradients(new GradientCheckUtil.GraphConfig().net(g)
+                    .inputs(new INDArray[] {in}).labels(new INDArray[] {labels})
+                    .epsilon(LawLayerGradientTest.EPS).maxRelError(LawLayerGradientTest.MAX_REL_ERROR)
+                    .minAbsoluteError(LawLayerGradientTest.MIN_ABS_ERROR)
+                    .print(GradientCheckUtil.PrintMode.FAILURES_ONLY).exitOnFirstError(false)),
+                    normalised ? "normalised" : "plain");
+        }
+    }
 }
