@@ -2,6 +2,7 @@
 # What share of a DL4J training step the law layer takes, from a JFR profile of TrainingStepBench (robust to a
 # machine that is slower or faster as a whole, unlike the difference of two timed runs).
 # Usage: benchmarks/layer-share.sh [shape ...]      shapes: headline (default), small, large
+# TIERS="constant-affine constant-affine+limits" benchmarks/layer-share.sh   measures only those tiers
 # Per shape and tier (constant-affine+limits: the same laws with a limit on every output that no sample touches): samples of the benchmark thread (Java every 10 ms, native every 20 ms, each weighted by its
 # period) with a dev.lawful core or adapter frame on the stack, over all its samples. About 40 s per line.
 set -euo pipefail
@@ -15,7 +16,7 @@ mkdir -p "$out"
 shapes=("$@")
 [[ ${#shapes[@]} -gt 0 ]] || shapes=(headline)
 for shape in "${shapes[@]}"; do
-  for tier in constant-affine affine nonlinear constant-affine+limits; do
+  for tier in ${TIERS:-constant-affine affine nonlinear constant-affine+limits}; do
     f="$out/$shape-$tier.jfr"
     java -jar "$jar" TrainingStepBench -p shape="$shape" -p laws="$tier" -wi 3 -w 2 -i 6 -r 2 -f 1 \
       -jvmArgsAppend "-XX:StartFlightRecording=filename=$f,settings=profile" > "$out/$shape-$tier.log" 2>&1

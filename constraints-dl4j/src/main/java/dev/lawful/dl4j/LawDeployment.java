@@ -38,7 +38,10 @@ import org.nd4j.shade.jackson.databind.ObjectMapper;
  *
  * <p>A returned {@link LawSpec} is a copy: changing it does not change the network. Its text, completed outputs and
  * bad-sample policy are all a core-only host needs ({@code LawSet.parse}, {@code Completion.builder}); or use
- * {@link LawSpec#completion()} directly, which needs no Deeplearning4j class.
+ * {@link LawSpec#completion()} directly, which needs no Deeplearning4j class. When the laws declare limits and the
+ * layer folds a normalizer, the layer moves a sample outside a limit in normalised units: build the host's completion
+ * with {@link LawSpec#completion(double[])} given the layer's output scales ({@code getOutputScaling().getScale()},
+ * saved in the configuration) to get the same outputs.
  */
 public final class LawDeployment {
     private LawDeployment() {

@@ -71,6 +71,31 @@ class LimitTrainingTest {
         }
         assertTrue(onLimit >= SAMPLES / 10, "only " + onLimit + " rows on the limit y[2] >= 0");
 
+        // a core-only host reproduces the outputs with the layer's metric (LawSpec.completion(scales)), and only then
+        float[] head = g.feedForward(data.getFeatures(), false).get(ConstrainedGraph.HEAD).castTo(DataType.FLOAT)
+                .dup('c').data().asFloat();
+        int k = c.freeWidth();
+        double[] z = new double[SAMPLES * k];
+        for (int s = 0; s < SAMPLES; s++) {
+            for (int f = 0; f < k; f++) {
+                int o = c.freeOutputs()[f];
+                z[s * k + f] = out.scale(o) * head[s * k + f] + out.offset(o);
+            }
+        }
+        double[] host = new double[SAMPLES * 3];
+        spec.completion(out.getScale()).forward(x, z, SAMPLES, host, null, null);
+        double[] unitMetric = new double[SAMPLES * 3];
+        spec.completion().forward(x, z, SAMPLES, unitMetric, null, null);
+        int differ = 0;
+        for (int i = 0; i < SAMPLES * 3; i++) {
+            int o = i % 3;
+            double net = out.scale(o) * yn[i] + out.offset(o);
+            double rounding = out.scale(o) * Math.ulp(yn[i]) + 4 * Math.ulp(Math.abs(net) + Math.abs(out.offset(o)));
+            assertTrue(Math.abs(host[i] - net) <= rounding, "value " + i + ": host " + host[i] + ", network " + net);
+            differ += Math.abs(unitMetric[i] - net) > rounding ? 1 : 0;
+        }
+        assertTrue(differ > 0, "the metric made no difference, so this check shows nothing");
+
         File file = dir.resolve("limits.zip").toFile();
         ModelSerializer.writeModel(g, file, false);
         ComputationGraph back = ModelSerializer.restoreComputationGraph(file, false);
