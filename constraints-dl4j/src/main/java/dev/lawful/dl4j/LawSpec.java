@@ -25,6 +25,7 @@ public final class LawSpec implements java.io.Serializable {
     private String[] completed;
     private boolean maskBadSamples;
     private boolean certifyWhileTraining;
+    private double[] limitWeights;
     private transient volatile LawSet laws;
     private transient volatile Completion completion;
     private transient volatile Sized sized;
@@ -117,6 +118,70 @@ public final class LawSpec implements java.io.Serializable {
     }
 
     /**
+     * @return per declared output, its weight in the metric in which a sample outside a limit is moved, or null for
+     *         weight 1 everywhere (see {@link #setLimitWeights(double[])})
+     */
+    public double[] getLimitWeights() {
+        return limitWeights == null ? null : limitWeights.clone();
+    }
+
+    /**
+     * Weights the outputs in the metric in which a sample outside a limit is moved: Σ_o w_o ((y*_o − y_o)/size_o)²,
+     * so a large weight keeps an output nearly where the network put it and lets the others absorb the move. For
+     * example, raising a negative rain to zero keeps the water budget closed by drying the column; weighting the
+     * radiative fluxes lets the energy budget take the condensation's latent heat as warming, which is what
+     * condensing water does, rather than as a change of radiation, which it does not cause. Null or all ones: every
+     * output counts equally (in the units the loss sees, when a normalizer is folded).
+     *
+     * @param limitWeights per declared output, finite and positive; copied
+     * @throws IllegalArgumentException when a weight is not finite and positive
+     */
+    public void setLimitWeights(double[] limitWeights) {
+        if (limitWeights != null) {
+            for (int o = 0; o < limitWeights.length; o++) {
+                if (!(limitWeights[o] > 0 && limitWeights[o] < Double.POSITIVE_INFINITY)) {
+                    throw new IllegalArgumentException("limit weight " + o + " must be finite and positive, found "
+                            + limitWeights[o]);
+                }
+            }
+        }
+        this.limitWeights = limitWeights == null ? null : limitWeights.clone();
+        this.completion = null;
+        this.sized = null;
+    }
+
+    /**
+     * Sets the limit weight of one output, every element of a vector output, in the metric of
+     * {@link #setLimitWeights(double[])}; the others keep theirs (1 unless set).
+     *
+     * @param output an output name ({@code F_sfc}) or element ({@code out[2]})
+     * @param weight finite and positive
+     * @return this spec
+     * @throws IllegalArgumentException when no output has that name or the weight is not finite and positive
+     */
+    public LawSpec limitWeight(String output, double weight) {
+        java.util.List<String> names = lawSet().outputNames();
+        double[] w = limitWeights == null ? new double[names.size()] : limitWeights.clone();
+        if (limitWeights == null) {
+            Arrays.fill(w, 1);
+        }
+        boolean found = false;
+        for (int o = 0; o < names.size(); o++) {
+            String n = names.get(o);
+            if (n.equals(output) || n.startsWith(output + "[")) {
+                w[o] = weight;
+                found = true;
+            }
+        }
+        if (!found) {
+            throw new IllegalArgumentException("no output is called '" + output + "'; the outputs are "
+                    + String.join(", ", names));
+        }
+        setLimitWeights(w);
+        return this;
+    }
+
+    /**
      * @param training whether the pass is a training pass (its outputs feed a loss and its gradient)
      * @return {@link BoundCheck#SKIP} for a training pass unless {@link #isCertifyWhileTraining()}, else
      *         {@link BoundCheck#EVERY_SAMPLE}: outputs a user sees, scores on held-out data and deployment are
@@ -151,7 +216,7 @@ public final class LawSpec implements java.io.Serializable {
     public Completion completion() {
         Completion c = completion;
         if (c == null) {
-            c = build(null);
+            c = build(limitWeights == null || lawSet().limits().isEmpty() ? null : weighted(null));
             completion = c;
         }
         return c;
@@ -160,7 +225,8 @@ public final class LawSpec implements java.io.Serializable {
     /**
      * The completion with its limits' metric set to the outputs' sizes (see
      * {@link Completion.Builder#limitScales(double...)}): a layer that folds a normalizer passes each output's
-     * scale, so that a sample outside a limit moves the least in the normalised units its loss sees. Equal to
+     * scale, so that a sample outside a limit moves the least in the normalised units its loss sees, each output's
+     * size divided by the square root of its {@linkplain #setLimitWeights(double[]) limit weight}. Equal to
      * {@link #completion()} when the law set has no limits or {@code outputSizes} is null.
      *
      * @param outputSizes per declared output, its size in its declared unit (a normalizer's standard deviation or
@@ -175,10 +241,24 @@ public final class LawSpec implements java.io.Serializable {
         }
         Sized s = sized;
         if (s == null || !Arrays.equals(s.sizes, outputSizes)) {
-            s = new Sized(outputSizes.clone(), build(outputSizes));
+            s = new Sized(outputSizes.clone(), build(weighted(outputSizes)));
             sized = s;
         }
         return s.completion;
+    }
+
+    /** @return the metric's sizes: size_o / √w_o, with size 1 when {@code sizes} is null and weight 1 when unset */
+    private double[] weighted(double[] sizes) {
+        int p = lawSet().outputWidth();
+        if (limitWeights != null && limitWeights.length != p) {
+            throw new IllegalArgumentException("limit weights must hold one value per output element (" + p
+                    + "), found " + limitWeights.length);
+        }
+        double[] out = new double[p];
+        for (int o = 0; o < p; o++) {
+            out[o] = (sizes == null ? 1 : sizes[o]) / (limitWeights == null ? 1 : Math.sqrt(limitWeights[o]));
+        }
+        return out;
     }
 
     private Completion build(double[] outputSizes) {
@@ -201,12 +281,13 @@ public final class LawSpec implements java.io.Serializable {
     public boolean equals(Object o) {
         return o instanceof LawSpec s && Objects.equals(lawText, s.lawText) && sourceName.equals(s.sourceName)
                 && Arrays.equals(completed, s.completed) && maskBadSamples == s.maskBadSamples
-                && certifyWhileTraining == s.certifyWhileTraining;
+                && certifyWhileTraining == s.certifyWhileTraining && Arrays.equals(limitWeights, s.limitWeights);
     }
 
     @Override
     public int hashCode() {
-        return Objects.hash(lawText, sourceName, Arrays.hashCode(completed), maskBadSamples, certifyWhileTraining);
+        return Objects.hash(lawText, sourceName, Arrays.hashCode(completed), maskBadSamples, certifyWhileTraining,
+                Arrays.hashCode(limitWeights));
     }
 
     @Override

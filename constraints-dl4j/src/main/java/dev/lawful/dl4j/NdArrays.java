@@ -165,6 +165,7 @@ final class NdArrays {
         s.setCompleted(spec.getCompleted());
         s.setMaskBadSamples(spec.isMaskBadSamples());
         s.setCertifyWhileTraining(spec.isCertifyWhileTraining());
+        s.setLimitWeights(spec.getLimitWeights());
         return s;
     }
 

@@ -179,6 +179,10 @@ public final class DemoReport {
                 o.trainRows() + o.testRows() + o.dropped(), o.dropped(), o.trainRows(), o.testRows(), o.seed(),
                 java.util.Arrays.toString(s.hidden()), s.learningRate(), s.batchSize(), s.epochs(),
                 s.penaltyWeight()));
+        if (!s.limitWeights().isEmpty() && !o.laws().limits().isEmpty()) {
+            sb.append("The exact network's limits move a sample the least in normalised units, weighted ")
+                    .append(new java.util.TreeMap<>(s.limitWeights())).append(" (1 for the other outputs). ");
+        }
         for (ScenarioTrainer.Network n : o.networks()) {
             sb.append(String.format(Locale.ROOT, "%s: %d of %d test rows outside the documented float32 bound. ",
                     n.label(), n.outsideBound(), o.testRows()));

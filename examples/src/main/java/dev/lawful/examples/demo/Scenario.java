@@ -2,6 +2,7 @@ package dev.lawful.examples.demo;
 
 import dev.lawful.examples.TruthModel;
 import java.util.List;
+import java.util.Map;
 import java.util.Objects;
 
 /**
@@ -23,9 +24,19 @@ import java.util.Objects;
  * @param sideChecks    quantities that should vanish when the laws hold but are not laws of the file (for the
  *                      reformer: the total mass balance, which follows from the element balances), reported per
  *                      network
+ * @param limitWeights  per output name, its weight in the metric in which the exact network's limits move a sample
+ *                      ({@link dev.lawful.dl4j.LawSpec#limitWeight(String, double)}); outputs not named weigh 1
  */
 public record Scenario(String name, String title, TruthModel truth, String caution, int samples, int epochs,
-        int[] hidden, int batchSize, double learningRate, double penaltyWeight, List<SideCheck> sideChecks) {
+        int[] hidden, int batchSize, double learningRate, double penaltyWeight, List<SideCheck> sideChecks,
+        Map<String, Double> limitWeights) {
+
+    /** A scenario whose limits weigh every output equally. */
+    public Scenario(String name, String title, TruthModel truth, String caution, int samples, int epochs,
+            int[] hidden, int batchSize, double learningRate, double penaltyWeight, List<SideCheck> sideChecks) {
+        this(name, title, truth, caution, samples, epochs, hidden, batchSize, learningRate, penaltyWeight, sideChecks,
+                Map.of());
+    }
 
     /**
      * A quantity of one row that vanishes when the laws hold, such as a balance the laws imply.
@@ -56,6 +67,7 @@ public record Scenario(String name, String title, TruthModel truth, String cauti
         Objects.requireNonNull(truth, "truth");
         hidden = hidden.clone();
         sideChecks = List.copyOf(sideChecks);
+        limitWeights = Map.copyOf(limitWeights);
         if (samples < 10 || epochs < 1 || batchSize < 1 || !(learningRate > 0) || !(penaltyWeight >= 0)) {
             throw new IllegalArgumentException("scenario " + name + ": samples must be at least 10, epochs and"
                     + " batch size at least 1, the learning rate positive and the penalty weight not negative");
@@ -75,6 +87,6 @@ public record Scenario(String name, String title, TruthModel truth, String cauti
      */
     public Scenario withSize(int samples, int epochs) {
         return new Scenario(name, title, truth, caution, samples, epochs, hidden, batchSize, learningRate,
-                penaltyWeight, sideChecks);
+                penaltyWeight, sideChecks, limitWeights);
     }
 }

@@ -127,6 +127,9 @@ public final class ScenarioTrainer {
         String text = lawText(truth.lawFile());
         LawSet laws = LawSet.parse(truth.lawFile(), text);
         LawSpec spec = LawSpec.of(laws);
+        if (!laws.limits().isEmpty()) {
+            scenario.limitWeights().forEach(spec::limitWeight);
+        }
         Completion completion = spec.completion();
         int k = laws.inputWidth();
         int p = laws.outputWidth();

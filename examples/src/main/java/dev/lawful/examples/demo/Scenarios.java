@@ -48,7 +48,12 @@ public final class Scenarios {
                 "the column scheme is a simplified demonstration, not a validated parameterisation; a surrogate"
                         + " coupled to a weather or climate model needs validation against the scheme it replaces"
                         + " and the model's own budget diagnostics before any forecast use.",
-                20000, 40, new int[] {128, 128}, 128, 1e-3, 100, List.of());
+                20000, 40, new int[] {128, 128}, 128, 1e-3, 100, List.of(),
+                // raising a negative rain to zero dries the column (the water budget); the energy budget must then
+                // take the latent heat of that condensation as warming of the layers, which is what condensing water
+                // does, not as a change of the radiative fluxes, which rain does not cause: the fluxes weigh 100
+                // times more in the move (each moves a tenth as far per unit of the loss's scale)
+                java.util.Map.of("F_sfc", 100.0, "F_top", 100.0));
     }
 
     /** Counterflow heat exchanger with temperature-dependent heat capacities: the nonlinear energy balance. */
