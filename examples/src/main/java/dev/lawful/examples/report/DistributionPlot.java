@@ -69,6 +69,8 @@ public final class DistributionPlot {
         }
         org.jfree.chart.axis.LogAxis log = new org.jfree.chart.axis.LogAxis(y.getLabel());
         log.setSmallestValue(1);
+        // whole powers of ten only: 1, 10, 100, 1000 rows
+        log.setTickUnit(new org.jfree.chart.axis.NumberTickUnit(1));
         XYPlot plot = new XYPlot(counts, x, log, steps);
         ValueMarker marker = new ValueMarker(limit, new Color(0x333333), new BasicStroke(1.5f, BasicStroke.CAP_BUTT,
                 BasicStroke.JOIN_MITER, 10f, new float[] {6f, 4f}, 0f));
