@@ -69,8 +69,11 @@ class DemoRunTest {
         }
         DemoReport report = DemoReport.of(outcome);
         assertTrue(report.exactWithinBound());
+        assertTrue(report.exactInsideLimits(), report.verdict());
         List<Path> files = report.write(dir);
-        assertEquals(6, files.size());
+        // the six of every report, and the distribution of a limited completed output when the laws have limits
+        boolean limited = !outcome.laws().limits().isEmpty();
+        assertEquals(limited ? 7 : 6, files.size());
         for (Path f : files) {
             assertTrue(Files.size(f) > 0, "empty report file " + f);
         }
@@ -85,5 +88,9 @@ class DemoRunTest {
         assertEquals(1 + 3 * 300, csv.size());
         assertTrue(report.table().contains("exact"));
         assertTrue(report.verdict().contains("exact          0 of 300"), report.verdict());
+        if (limited) {
+            assertTrue(report.verdict().contains("Test rows outside limit '"), report.verdict());
+            assertTrue(json.get("caution").asText().contains("Test rows outside limit '"));
+        }
     }
 }
