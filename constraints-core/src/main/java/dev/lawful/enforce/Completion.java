@@ -425,7 +425,11 @@ public final class Completion {
 
     /**
      * Vector-Jacobian product: maps gradients on the outputs to gradients on the free outputs (and inputs), by
-     * the implicit function theorem at the solution {@code y}.
+     * the implicit function theorem at the solution {@code y}. With limits, a sample that lies on a limit gets the
+     * gradient of the move: the completion's gradient projected onto the active limits' null space in the move's
+     * metric, and the limits' own dependence on the inputs (exact when the laws' and the limits' coefficients on
+     * the outputs are constants; see {@code docs/mathematics.md} for the other tiers and the one-sided choice at a
+     * switch between active sets).
      *
      * @param x         inputs of the forward call (null when there are none); read only
      * @param y         outputs the forward call returned (this completion's layout); read only
