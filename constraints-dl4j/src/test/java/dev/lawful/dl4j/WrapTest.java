@@ -304,6 +304,33 @@ class WrapTest {
     }
 
     @Test
+    void aWrappedNetworkWhoseLawsDeclareLimitsKeepsEveryOutputInsideThemAndFineTunes() {
+        // y[2] of this data reaches below 0.2 on some rows; the limit keeps every output of the wrapped network at or
+        // above it, in the wrapped network as trained and after fine-tuning through the limit
+        LawSpec spec = LawSpec.of(TestNets.CONSTANT_AFFINE + "limit floor: y[2] >= 0.2\n");
+        DataSet data = constantAffineData(DataType.DOUBLE, 61);
+        MultiLayerNetwork trained = plain(DataType.DOUBLE, 4, Activation.IDENTITY, 61);
+        for (int i = 0; i < PRETRAIN; i++) {
+            trained.fit(data);
+        }
+        MultiLayerNetwork wrapped = LawWrap.wrap(trained, spec);
+        double before = wrapped.score(data);
+        int on = 0;
+        for (int round = 0; round < 2; round++) {
+            double[] y = TestNets.flat(wrapped.output(data.getFeatures()));
+            for (int s = 0; s < SAMPLES; s++) {
+                assertTrue(y[s * 4 + 2] >= 0.2, "round " + round + ", row " + s + ": y[2] = " + y[s * 4 + 2]);
+                on += y[s * 4 + 2] <= 0.2 + 1e-9 ? 1 : 0;
+            }
+            for (int i = 0; round == 0 && i < FINE_TUNE; i++) {
+                wrapped.fit(data);
+            }
+        }
+        assertTrue(on > 0, "no row touched the limit, so this test shows nothing");
+        assertTrue(wrapped.score(data) < before, "fine-tuning did not lower the loss");
+    }
+
+    @Test
     void lawsWithInputsInAMultiLayerNetworkAreRefusedPointingToTheGraph() {
         MultiLayerNetwork net = plain(DataType.DOUBLE, 3, Activation.IDENTITY, 45);
         IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
