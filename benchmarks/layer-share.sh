@@ -3,7 +3,9 @@
 # machine that is slower or faster as a whole, unlike the difference of two timed runs).
 # Usage: benchmarks/layer-share.sh [shape ...]      shapes: headline (default), small, large
 # TIERS="constant-affine constant-affine+limits" benchmarks/layer-share.sh   measures only those tiers
-# Per shape and tier (constant-affine+limits: the same laws with a limit on every output that no sample touches): samples of the benchmark thread (Java every 10 ms, native every 20 ms, each weighted by its
+# NET=graph benchmarks/layer-share.sh   the graph path (ConstrainedGraph with a law vertex, GraphTrainingStepBench)
+# Per shape and tier (constant-affine+limits: the same laws with a limit on every output that no sample
+# touches): samples of the benchmark thread (Java every 10 ms, native every 20 ms, each weighted by its
 # period) with a dev.lawful core or adapter frame on the stack, over all its samples. About 40 s per line.
 set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
@@ -11,16 +13,18 @@ cd "$here"
 mvn -B -q -DskipTests package -pl benchmarks -am
 export OMP_NUM_THREADS=1
 jar=benchmarks/target/benchmarks.jar
+bench='\.TrainingStepBench\.'
+[[ "${NET:-layer}" == graph ]] && bench='\.GraphTrainingStepBench\.'
 out=benchmarks/target/layer-share
 mkdir -p "$out"
 shapes=("$@")
 [[ ${#shapes[@]} -gt 0 ]] || shapes=(headline)
 for shape in "${shapes[@]}"; do
   for tier in ${TIERS:-constant-affine affine nonlinear constant-affine+limits}; do
-    f="$out/$shape-$tier.jfr"
-    java -jar "$jar" TrainingStepBench -p shape="$shape" -p laws="$tier" -wi 3 -w 2 -i 6 -r 2 -f 1 \
-      -jvmArgsAppend "-XX:StartFlightRecording=filename=$f,settings=profile" > "$out/$shape-$tier.log" 2>&1
-    jfr print --events jdk.ExecutionSample,jdk.NativeMethodSample --stack-depth 200 "$f" | awk -v tag="$shape $tier" '
+    f="$out/${NET:-layer}-$shape-$tier.jfr"
+    java -jar "$jar" "$bench" -p shape="$shape" -p laws="$tier" -wi 3 -w 2 -i 6 -r 2 -f 1 \
+      -jvmArgsAppend "-XX:StartFlightRecording=filename=$f,settings=profile" > "$out/${NET:-layer}-$shape-$tier.log" 2>&1
+    jfr print --events jdk.ExecutionSample,jdk.NativeMethodSample --stack-depth 200 "$f" | awk -v tag="${NET:-layer} $shape $tier" '
       /^jdk\.(ExecutionSample|NativeMethodSample)/ {if (inev) flush(); inev=1; w=($0 ~ /Native/) ? 20 : 10; law=0; bench=0; next}
       /dev\.lawful\.(enforce|dl4j|algebra)\./ {law=1}
       /TrainingStepBench\.fit/ {bench=1}
