@@ -120,22 +120,13 @@ abstract class DistributedTrainingChecks {
             t[s][2] = 1000 - t[s][0] - t[s][1] - t[s][3];
         }
         DataSet data = floats(u, t);
-        NormalizerStandardize normalizer = new NormalizerStandardize();
-        normalizer.fitLabel(true);
-        normalizer.fit(data);
-        normalizer.preProcess(data);
+        NormalizerStandardize normalizer = normaliseWithLabels(data);
         LawLayer layer = LawLayer.of(BALANCES).normalizedWith(normalizer);
         MultiLayerNetwork net = mln(layer, layer.lawCompletion().freeWidth(), DataType.FLOAT, 62);
         SparkDl4jMultiLayer spark = LawfulSpark.multiLayer(sc, net, adamMaster());
 
-        double before = net.score(data);
-        JavaRDD<DataSet> rdd = SparkTests.rdd(sc, data, BATCH);
-        for (int e = 0; e < EPOCHS; e++) {
-            spark.fit(rdd);
-        }
+        trainAndSeeTheLossFall(spark::fit, SparkTests.rdd(sc, data, BATCH), () -> net.score(data));
         MultiLayerNetwork trained = spark.getNetwork();
-        double after = trained.score(data);
-        assertTrue(after < before / 5, "loss " + before + " -> " + after);
 
         INDArray out = trained.output(data.getFeatures());
         LawLayer trainedLayer = (LawLayer) trained.getLayerWiseConfigurations().getConf(2).getLayer();
@@ -170,13 +161,8 @@ abstract class DistributedTrainingChecks {
         SparkDl4jMultiLayer spark = LawfulSpark.multiLayer(sc, net, adamMaster());
 
         JavaRDD<DataSet> rdd = SparkTests.rdd(sc, data, BATCH);
-        double before = spark.calculateScore(rdd, true);
-        for (int e = 0; e < EPOCHS; e++) {
-            spark.fit(rdd);
-        }
         // scored on the executors, by networks they rebuilt from the configuration
-        double after = spark.calculateScore(rdd, true);
-        assertTrue(after < before / 5, "loss " + before + " -> " + after);
+        double after = trainAndSeeTheLossFall(spark::fit, rdd, () -> spark.calculateScore(rdd, true));
         assertEquals(spark.getNetwork().score(data), after, 1e-5 * after, "the executors' score is the driver's");
 
         MultiLayerNetwork trained = spark.getNetwork();
@@ -200,22 +186,13 @@ abstract class DistributedTrainingChecks {
             t[s][2] = (a[s][0] * t[s][0] + t[s][1]) / a[s][1];
         }
         DataSet data = floats(a, t);
-        NormalizerStandardize normalizer = new NormalizerStandardize();
-        normalizer.fitLabel(true);
-        normalizer.fit(data);
-        normalizer.preProcess(data);
+        NormalizerStandardize normalizer = normaliseWithLabels(data);
         ComputationGraph net = ConstrainedGraph.builder(LawSpec.of(WEIGHTED)).hidden(16).updater(new Adam(2e-2))
                 .seed(82).normalizedWith(normalizer).build();
         SparkComputationGraph spark = LawfulSpark.graph(sc, net, adamMaster());
 
-        double before = net.score(data);
-        JavaRDD<DataSet> rdd = SparkTests.rdd(sc, data, BATCH);
-        for (int e = 0; e < EPOCHS; e++) {
-            spark.fit(rdd);
-        }
+        trainAndSeeTheLossFall(spark::fit, SparkTests.rdd(sc, data, BATCH), () -> net.score(data));
         ComputationGraph trained = spark.getNetwork();
-        double after = trained.score(data);
-        assertTrue(after < before / 5, "loss " + before + " -> " + after);
 
         INDArray out = trained.outputSingle(data.getFeatures());
         LawVertex vertex = (LawVertex) trained.getConfiguration().getVertices().get(ConstrainedGraph.LAWS);
@@ -267,6 +244,31 @@ abstract class DistributedTrainingChecks {
             assertEquals(expected[i], actual[i], 1e-12 * (1 + Math.abs(expected[i])), "parameter " + i);
         }
         assertTrue(reference.score(data) < before, "the steps lower the loss");
+    }
+
+    /**
+     * Runs {@link #EPOCHS} epochs of {@code fit} on {@code rdd} and asserts the loss falls at least five times.
+     *
+     * @return the loss after training
+     */
+    static double trainAndSeeTheLossFall(java.util.function.Consumer<JavaRDD<DataSet>> fit, JavaRDD<DataSet> rdd,
+                                         java.util.function.DoubleSupplier loss) {
+        double before = loss.getAsDouble();
+        for (int e = 0; e < EPOCHS; e++) {
+            fit.accept(rdd);
+        }
+        double after = loss.getAsDouble();
+        assertTrue(after < before / 5, "loss " + before + " -> " + after);
+        return after;
+    }
+
+    /** Fits a standardizer to {@code data}, labels included, and normalises {@code data} with it. */
+    static NormalizerStandardize normaliseWithLabels(DataSet data) {
+        NormalizerStandardize normalizer = new NormalizerStandardize();
+        normalizer.fitLabel(true);
+        normalizer.fit(data);
+        normalizer.preProcess(data);
+        return normalizer;
     }
 
     /**
@@ -338,12 +340,12 @@ abstract class DistributedTrainingChecks {
         return net;
     }
 
+    /** @return a {@code rows × cols} array of uniform values in [lo, hi), seeded */
     static double[][] uniform(SplittableRandom r, int rows, int cols, double lo, double hi) {
-        double[][] v = new double[rows][cols];
-        for (double[] row : v) {
-            for (int j = 0; j < cols; j++) {
-                row[j] = lo + (hi - lo) * r.nextDouble();
-            }
+        double[] values = r.doubles((long) rows * cols, lo, hi).toArray();
+        double[][] v = new double[rows][];
+        for (int s = 0; s < rows; s++) {
+            v[s] = java.util.Arrays.copyOfRange(values, s * cols, (s + 1) * cols);
         }
         return v;
     }
