@@ -172,12 +172,16 @@ public final class LawfulSpark {
             }
         }
         if (!missing.isEmpty()) {
-            throw new IllegalStateException("this JVM cannot run a Spark driver on Java " + Runtime.version().feature()
-                    + ": it was started without " + String.join(" ", missing) + "; add "
-                    + (missing.size() == 1 ? "it" : "them") + " to the java command line, to spark-submit's"
-                    + " --driver-java-options, or to Maven Surefire's argLine (LawfulSpark.DRIVER_JAVA_OPTIONS lists"
-                    + " them all)");
+            throw new IllegalStateException(missingFlags(missing));
         }
+    }
+
+    /** @return the message for a driver JVM started without {@code missing} */
+    static String missingFlags(List<String> missing) {
+        return "this JVM cannot run a Spark driver on Java " + Runtime.version().feature() + ": it was started without "
+                + String.join(" ", missing) + "; add " + (missing.size() == 1 ? "it" : "them") + " to the java command"
+                + " line, to spark-submit's --driver-java-options, or to Maven Surefire's argLine"
+                + " (LawfulSpark.DRIVER_JAVA_OPTIONS lists them all)";
     }
 
     /**

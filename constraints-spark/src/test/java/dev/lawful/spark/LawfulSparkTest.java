@@ -65,9 +65,13 @@ class LawfulSparkTest {
     }
 
     @Test
-    void thisTestJvmHasTheDriverFlags() {
-        // the module's Surefire argLine must list LawfulSpark.DRIVER_JAVA_OPTIONS, as the README tells users to
+    void aDriverWithoutTheFlagsIsToldWhichAndWhere() {
+        // the module's Surefire argLine lists LawfulSpark.DRIVER_JAVA_OPTIONS, as the README tells users to
         LawfulSpark.checkDriverJvm();
+        assertEquals("this JVM cannot run a Spark driver on Java " + Runtime.version().feature() + ": it was started"
+                + " without --add-opens=java.base/sun.nio.ch=ALL-UNNAMED; add it to the java command line, to"
+                + " spark-submit's --driver-java-options, or to Maven Surefire's argLine (LawfulSpark.DRIVER_JAVA_OPTIONS"
+                + " lists them all)", LawfulSpark.missingFlags(List.of("--add-opens=java.base/sun.nio.ch=ALL-UNNAMED")));
     }
 
     private static Path jar(Path file, String classPath) throws IOException {
