@@ -20,7 +20,8 @@ import scala.Tuple2;
  * network. Deeplearning4j 1.0.0-M2 broadcasts the network's own parameter array for them, and Spark 3 closes an
  * {@code AutoCloseable} broadcast value when it removes the broadcast (at the latest when the context cleaner
  * collects it), which frees the driver network's parameters under it: the next training round then fails with "Op.Z
- * argument was closed before call", or worse reads freed memory. Training ({@code fit}) broadcasts a copy itself and
+ * argument was closed before call", or worse reads freed memory (measured with the Kryo serializer; see
+ * docs/platform-facts.md). Training ({@code fit}) broadcasts a copy itself and
  * is unchanged. See {@link LawfulSpark#multiLayer}.
  */
 final class CopyScoringMultiLayer extends SparkDl4jMultiLayer {
