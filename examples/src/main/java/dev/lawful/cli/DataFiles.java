@@ -187,14 +187,24 @@ final class DataFiles {
         Set<String> unmatched = new LinkedHashSet<>(missing);
         // a huge header of unknown names gets no suggestions rather than a quadratic search
         List<String> compared = (long) unknown.size() * missing.size() <= MAX_PAIRS ? unknown : List.of();
+        List<String> left = new ArrayList<>();
         for (String column : compared) {
-            String near = dev.lawful.algebra.Names.nearest(column, unmatched);
-            if (near != null) {
+            String near = nearestElement(column, unmatched);
+            if (near == null) {
+                left.add(column);
+            } else {
                 lines.add(prefix + file + ": line " + line + ", column '" + column + "': not an element of "
                         + lawFile + "; did you mean '" + near + "' (" + needed.get(near) + ")?");
                 explained.add(near);
                 unmatched.remove(near);
             }
+        }
+        if (left.size() == 1 && unmatched.size() == 1) {
+            // one unknown column and one missing element: the column is that element under another name
+            String near = unmatched.iterator().next();
+            lines.add(prefix + file + ": line " + line + ", column '" + left.get(0) + "': not an element of "
+                    + lawFile + "; did you mean '" + near + "' (" + needed.get(near) + ", the only one missing)?");
+            explained.add(near);
         }
         for (String element : missing) {
             if (!explained.contains(element)) {
@@ -209,6 +219,25 @@ final class DataFiles {
                     + (more == 1 ? "column" : "columns"));
         }
         return String.join("\n", lines);
+    }
+
+    /**
+     * @return the missing element a column name is a misspelling of: the same up to brackets, underscores, spaces and
+     *         case ({@code out3}, {@code OUT_3} for {@code out[3]}), or else the nearest by {@code Names.nearest};
+     *         null when none is near
+     */
+    static String nearestElement(String column, Set<String> missing) {
+        String bare = bare(column);
+        for (String element : missing) {
+            if (bare(element).equals(bare)) {
+                return element;
+            }
+        }
+        return dev.lawful.algebra.Names.nearest(column, missing);
+    }
+
+    private static String bare(String name) {
+        return name.replaceAll("[\\[\\]_ ]", "").toLowerCase(java.util.Locale.ROOT);
     }
 
     private static String columns(List<String> names) {

@@ -74,6 +74,12 @@ public final class Lawful implements Runnable {
      * @param args the arguments
      */
     public static void main(String... args) {
+        // JavaCPP's loader (under ND4J, for lawful demo) warns on standard error that Deeplearning4j 1.0.0-M2.1's own
+        // JavaCPP and OpenBLAS versions differ; through SLF4J the warning reaches the command line's logging
+        // backend, which discards it
+        if (System.getProperty("org.bytedeco.javacpp.logger") == null) {
+            System.setProperty("org.bytedeco.javacpp.logger", "slf4j");
+        }
         System.exit(run(System.out, System.err, args));
     }
 
@@ -108,7 +114,8 @@ public final class Lawful implements Runnable {
 
     /**
      * Prints a usage error: the message, for an unknown command the nearest command name when one is near (picocli's
-     * own suggestions would offer any command, and then leave out the usage), and the usage of the command.
+     * own suggestions would offer any command), and one line saying where the help is. The whole help is not
+     * printed: it would scroll the error out of sight.
      *
      * @return the exit status {@link #EXIT_USAGE}
      */
@@ -123,19 +130,21 @@ public final class Lawful implements Runnable {
                 err.println("Did you mean 'lawful " + near + "'?");
             }
         }
-        line.usage(err);
+        err.println("Run '" + line.getCommandSpec().qualifiedName() + " --help' for the options and what they do.");
         return EXIT_USAGE;
     }
 
     /**
      * A writer that hands its characters to {@code stream}, so they are encoded with the stream's charset (a
-     * {@code PrintWriter} built on the stream directly would use the platform default instead).
+     * {@code PrintWriter} built on the stream directly would use the platform default instead), with every control
+     * character escaped ({@link Printable}): messages quote law and data files, and an escape sequence in a file
+     * must not reach the terminal.
      */
     private static PrintWriter writer(PrintStream stream) {
         return new PrintWriter(new Writer() {
             @Override
             public void write(char[] buffer, int offset, int length) {
-                stream.print(String.valueOf(buffer, offset, length));
+                stream.print(Printable.escape(String.valueOf(buffer, offset, length)));
             }
 
             @Override

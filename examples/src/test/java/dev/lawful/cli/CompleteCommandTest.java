@@ -225,6 +225,19 @@ class CompleteCommandTest {
     }
 
     @Test
+    void aColumnWithoutBracketsOrUnderAnotherNameGetsADidYouMean() throws IOException {
+        // out3 is out[3] without its brackets; temperature is the only unknown column and T the only missing element
+        Path data = write("in.csv", REFORMER_HEADER.replace("out[3]", "out3").replace(",T,", ",temperature,")
+                + "\n1,3,0,0.05,0.02,0.01,900,0.4,0.35\n");
+        Captured r = run("complete", reformer(), "--in", data.toString(), "--out", temp.resolve("o.csv").toString());
+        assertEquals(2, r.code());
+        assertEquals("lawful complete: " + data + ": line 1, column 'out3': not an element of " + reformer()
+                + "; did you mean 'out[3]' (a free output)?\n"
+                + "lawful complete: " + data + ": line 1, column 'temperature': not an element of " + reformer()
+                + "; did you mean 'T' (an input, the only one missing)?\n", r.err());
+    }
+
+    @Test
     void unwritableOutputIsAUsageError() throws IOException {
         Path data = write("in.csv", REFORMER_HEADER + "\n1,3,0,0.05,0.02,0.01,900,0.4,0.35\n");
         Path nowhere = temp.resolve("no-such-dir").resolve("o.csv");

@@ -190,7 +190,8 @@ class VerifyCommandTest {
     void misnamedAndMissingColumnsAreNamedWithTheNearestElement() throws IOException {
         assertCsvProblem(HEADER.replace("out[2]", "ot[2]").replace(",T,", ",Temp,") + "\n" + ROW1 + "\n",
                 "lawful verify: @CSV@: line 1, column 'ot[2]': not an element of @LAW@; did you mean 'out[2]' (an"
-                        + " output)?\nlawful verify: @CSV@: line 1: no column 'T' (an input of @LAW@)");
+                        + " output)?\nlawful verify: @CSV@: line 1, column 'Temp': not an element of @LAW@; did you mean"
+                        + " 'T' (an input, the only one missing)?");
         assertCsvProblem("# header next\n" + HEADER.replace(",out[5]", "") + "\n" + ROW1.substring(0,
                 ROW1.lastIndexOf(',')) + "\n", "lawful verify: @CSV@: line 2: no column 'out[5]' (an output of @LAW@)");
         assertCsvProblem(HEADER.replace("feed[4]", "FEED[4]") + "\n" + ROW1 + "\n",
@@ -279,7 +280,7 @@ class VerifyCommandTest {
             assertEquals(2, r.code(), bad);
             assertEquals("", r.out());
             assertTrue(r.err().startsWith("--tol must be a finite number >= 0, found " + Double.parseDouble(bad)
-                    + "\nUsage: lawful verify"), r.err());
+                    + "\nRun 'lawful verify --help' for the options and what they do.\n"), r.err());
         }
         Captured text = run("verify", reformer(), "--in", data.toString(), "--tol", "abc");
         assertEquals(2, text.code());
