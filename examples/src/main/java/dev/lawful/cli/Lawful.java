@@ -1,5 +1,7 @@
 package dev.lawful.cli;
 
+import java.io.InputStream;
+import java.io.OutputStream;
 import java.io.PrintStream;
 import java.io.PrintWriter;
 import java.io.Writer;
@@ -58,8 +60,32 @@ public final class Lawful implements Runnable {
     @Spec
     private CommandSpec spec;
 
+    private InputStream stdin = InputStream.nullInputStream();
+    private PrintStream stdout = new PrintStream(OutputStream.nullOutputStream());
+    private boolean errTerminal;
+
     /** Creates the top command; picocli calls this. */
     public Lawful() {
+    }
+
+    /** @return standard input, for {@code --in -} */
+    InputStream stdin() {
+        return stdin;
+    }
+
+    /** @return standard output as bytes, for {@code --out -} (data are written to it unescaped) */
+    PrintStream stdout() {
+        return stdout;
+    }
+
+    /** @return whether standard error is a terminal, so a progress display may be drawn on it */
+    boolean standardErrorIsTerminal() {
+        return errTerminal;
+    }
+
+    /** @return the worker threads of {@code complete} and {@code verify}: one per available processor */
+    int threads() {
+        return Pipeline.defaultThreads();
     }
 
     /** Runs when no command is given: that is a usage error. */
@@ -80,7 +106,7 @@ public final class Lawful implements Runnable {
         if (System.getProperty("org.bytedeco.javacpp.logger") == null) {
             System.setProperty("org.bytedeco.javacpp.logger", "slf4j");
         }
-        System.exit(run(System.out, System.err, args));
+        System.exit(run(System.in, System.out, System.err, RowProgress.standardErrorIsTerminal(), args));
     }
 
     /**
@@ -93,9 +119,27 @@ public final class Lawful implements Runnable {
      *         {@link #EXIT_INTERNAL}
      */
     public static int run(PrintStream out, PrintStream err, String... args) {
+        return run(InputStream.nullInputStream(), out, err, false, args);
+    }
+
+    /**
+     * Runs the command line without exiting, with a standard input.
+     *
+     * @param in       standard input, read by {@code --in -}
+     * @param out      receives results, and the data of {@code --out -} (as bytes)
+     * @param err      receives diagnostics, usage errors and, when {@code terminal}, the progress display
+     * @param terminal whether {@code err} is a terminal
+     * @param args     the arguments, as on the command line
+     * @return the exit status, as {@link #run(PrintStream, PrintStream, String...)}
+     */
+    public static int run(InputStream in, PrintStream out, PrintStream err, boolean terminal, String... args) {
         PrintWriter o = writer(out);
         PrintWriter e = writer(err);
-        CommandLine cmd = new CommandLine(new Lawful());
+        Lawful top = new Lawful();
+        top.stdin = in;
+        top.stdout = out;
+        top.errTerminal = terminal;
+        CommandLine cmd = new CommandLine(top);
         cmd.setOut(o);
         cmd.setErr(e);
         cmd.setParameterExceptionHandler(Lawful::usageError);
