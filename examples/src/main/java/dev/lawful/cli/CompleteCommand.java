@@ -164,7 +164,7 @@ public final class CompleteCommand implements Callable<Integer> {
                 Summary s = write(laws, completion, source, sel, target, table, err);
                 table.finish(target, s.rows());
                 target.commit();
-                summary(report, laws, completion, source, target, s);
+                summary(report, laws, completion, source, target, table, s);
             } finally {
                 target.abandon();
             }
@@ -313,7 +313,7 @@ public final class CompleteCommand implements Callable<Integer> {
     }
 
     private void summary(PrintWriter report, LawSet laws, Completion completion, RowSource source,
-                         OutputTarget target, Summary s) {
+                         OutputTarget target, TableOutput table, Summary s) {
         long rows = s.rows();
         report.println(file + ": completed " + String.join(", ", completion.completedNames()) + " ("
                 + completion.tier().label() + ", condition number " + LawSummary.threeDigits(completion.condition())
@@ -321,6 +321,10 @@ public final class CompleteCommand implements Callable<Integer> {
                 : String.join(", ", completion.freeNames())));
         report.println("wrote " + target.shown() + ": " + rows + (rows == 1 ? " row" : " rows") + " of "
                 + source.name() + (keepGoing ? ", with a status column" : ""));
+        if (table.names() != null) {
+            report.println("its columns (a .npy file has no names; read it back with --columns): "
+                    + String.join(",", table.names()));
+        }
         if (laws.expand().limitCount() > 0) {
             report.println("limits moved " + s.moved() + " of " + rows + (rows == 1 ? " row" : " rows")
                     + " (their free outputs changed to bring them inside; the others are as read)");

@@ -58,9 +58,9 @@ abstract class TableOutput {
                 .peek(k -> columns.add(names.get(k))).toArray();
     }
 
-    /** @return the output's column names, in order */
-    List<String> columns() {
-        return columns;
+    /** @return the column names when the format does not store them (.npy), else null */
+    List<String> names() {
+        return this instanceof Npy ? columns : null;
     }
 
     /** @return the bytes before the first row */
