@@ -79,6 +79,7 @@ final class DataInput {
             return switch (f) {
                 case "npy" -> NpySource.open(in, path, columns);
                 case "npz" -> NpzSource.open(in, path);
+                case "hdf5" -> Hdf5Source.open(in, path);
                 default -> CsvSource.open(in, Files.newInputStream(path), Files.size(path));
             };
         } catch (IOException e) {

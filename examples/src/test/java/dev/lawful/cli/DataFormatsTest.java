@@ -23,14 +23,14 @@ import org.nd4j.linalg.api.ndarray.INDArray;
 import org.nd4j.linalg.factory.Nd4j;
 
 /**
- * NumPy files in and out of {@code complete} and {@code verify}. The fixtures are written here byte by byte from
+ * NumPy and HDF5 files in and out of {@code complete} and {@code verify}. The fixtures are written here byte by byte from
  * NumPy's format specification ({@code numpy.lib.format}, "NPY format": magic {@code \x93NUMPY}, version 1.0, a
  * little-endian 2-byte header length, a Python dict literal with descr, fortran_order and shape, padded with spaces
  * and a line feed to a multiple of 64 bytes) and its {@code numpy.savez} documentation (a ZIP archive of one
  * {@code NAME.npy} per array); the completed outputs are checked against the element balances worked by hand, and
  * the .npy the command writes is read back with ND4J's own reader.
  */
-class NumpyFilesTest {
+class DataFormatsTest {
 
     @TempDir
     Path temp;
@@ -228,5 +228,61 @@ class NumpyFilesTest {
         Captured notNpy = LawfulTest.run("verify", reformer(), "--in", text.toString(), "--columns", "a");
         assertEquals("lawful verify: " + text + ": not a NumPy .npy file (it does not start with \\x93NUMPY)\n",
                 notNpy.err());
+    }
+
+    // ---- HDF5 and NetCDF-4 -----------------------------------------------------------------------------------
+
+    @Test
+    void hdf5VariablesCompleteToANpyFileThatVerifies() throws IOException {
+        // the fixture is written by jhdf 0.9.4's own writer (io.jhdf.HdfFile.write), which follows the HDF5 File
+        // Format Specification; one dataset per law vector or element, as a NetCDF-4 file has one variable each
+        Path h5 = temp.resolve("in.h5");
+        double[][] feed = new double[ROWS.length][6];
+        double[] t = new double[ROWS.length];
+        double[] ch4 = new double[ROWS.length];
+        double[] co2 = new double[ROWS.length];
+        for (int r = 0; r < ROWS.length; r++) {
+            System.arraycopy(ROWS[r], 0, feed[r], 0, 6);
+            t[r] = ROWS[r][6];
+            ch4[r] = ROWS[r][7];
+            co2[r] = ROWS[r][8];
+        }
+        try (io.jhdf.WritableHdfFile w = io.jhdf.HdfFile.write(h5)) {
+            w.putDataset("feed", feed);
+            w.putDataset("T", t);
+            w.putDataset("out[0]", ch4);
+            w.putDataset("out[3]", co2);
+        }
+        Path out = temp.resolve("out.npy");
+        Captured c = LawfulTest.run("complete", reformer(), "--in", h5.toString(), "--out", out.toString());
+        assertEquals(0, c.code(), c.err());
+        // Source: ND4J 1.0.0-M2.1's own .npy reader
+        INDArray back = Nd4j.createFromNpyFile(out.toFile());
+        for (int r = 0; r < ROWS.length; r++) {
+            double[] expected = completed(ROWS[r]);
+            for (int k = 0; k < 6; k++) {
+                assertEquals(expected[k], back.getDouble(r, 7 + k), 1e-12, "row " + r + " out[" + k + "]");
+            }
+        }
+        Captured v = LawfulTest.run("verify", reformer(), "--in", out.toString(), "--columns",
+                "feed[0],feed[1],feed[2],feed[3],feed[4],feed[5],T,out[0],out[1],out[2],out[3],out[4],out[5]");
+        assertEquals(0, v.code(), v.out() + v.err());
+    }
+
+    @Test
+    void aTwoDimensionalHdf5VariableIsNamedByItsColumnsAttribute() throws IOException {
+        Path h5 = temp.resolve("table.h5");
+        try (io.jhdf.WritableHdfFile w = io.jhdf.HdfFile.write(h5)) {
+            w.putDataset("table", ROWS).putAttribute("columns", String.join(",", COLUMNS));
+        }
+        Path out = temp.resolve("out.csv");
+        Captured c = LawfulTest.run("complete", reformer(), "--in", h5.toString(), "--out", out.toString());
+        assertEquals(0, c.code(), c.err());
+        dev.lawful.io.CsvTable table = dev.lawful.io.CsvTable.read(out);
+        assertEquals(completed(ROWS[1])[2], table.get(1, table.column("out[2]")), 1e-12);
+        Path text = file("text.h5", "feed[0]\n1\n".getBytes(StandardCharsets.UTF_8));
+        Captured bad = LawfulTest.run("verify", reformer(), "--in", text.toString());
+        assertEquals(2, bad.code());
+        assertTrue(bad.err().startsWith("lawful verify: " + text + ": not an HDF5 or NetCDF-4 file: "), bad.err());
     }
 }
