@@ -82,9 +82,10 @@ final class BinaryChunk implements RowSource.Chunk {
 
     /**
      * @param bytesPerRow the bytes of one row over every column
-     * @return rows per chunk: about a megabyte of data, at least one row
+     * @return rows per chunk: about {@link CsvSource#CHUNK_BYTES} of data (small enough for the G1 collector's
+     *         ordinary allocation path), at least one row
      */
     static int rowsPerChunk(long bytesPerRow) {
-        return (int) Math.max(1, Math.min(1 << 16, (1 << 20) / Math.max(1, bytesPerRow)));
+        return (int) Math.max(1, Math.min(1 << 16, CsvSource.CHUNK_BYTES / Math.max(1, bytesPerRow)));
     }
 }

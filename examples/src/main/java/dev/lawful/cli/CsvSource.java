@@ -27,8 +27,12 @@ import java.util.Map;
  * editor counts it and the column.
  */
 final class CsvSource implements RowSource {
-    /** Bytes per chunk (a chunk ends at a line end, so it can be longer by one line). */
-    static final int CHUNK_BYTES = 1 << 20;
+    /**
+     * Bytes per chunk (a chunk ends at a line end, so it can be longer by one line). Small enough that no array of a
+     * chunk is a "humongous" object for the G1 collector (half a region or more; regions are at least 1 MB), which
+     * would make the default heap grow to gigabytes: measured in docs/design-notes.md.
+     */
+    static final int CHUNK_BYTES = 1 << 18;
     /** Notes about non-finite values kept per chunk. */
     private static final int NOTES = 3;
     /** Longest piece of a bad value quoted in a message. */
@@ -37,7 +41,7 @@ final class CsvSource implements RowSource {
     private final String name;
     private final InputStream in;
     private final long size;
-    private byte[] buf = new byte[CHUNK_BYTES + (CHUNK_BYTES >> 2)];
+    private byte[] buf = new byte[4 * CHUNK_BYTES];
     private int start;
     private int end;
     private boolean eof;

@@ -3,7 +3,6 @@ package dev.lawful.cli;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.enforce.SampleStatus;
 import dev.lawful.io.CsvWriter;
-import dev.lawful.io.ShortestDecimal;
 import java.io.IOException;
 import java.nio.ByteBuffer;
 import java.nio.ByteOrder;
@@ -89,7 +88,7 @@ abstract class TableOutput {
     void finish(OutputTarget target, long rows) throws IOException {
     }
 
-    /** CSV: numbers in the shortest form that reads back to the same double. */
+    /** CSV: numbers in the shortest form that reads back to the same double ({@link FastDecimal}). */
     private static final class Csv extends TableOutput {
         private final boolean status;
         private final String statusName;
@@ -118,16 +117,17 @@ abstract class TableOutput {
 
         @Override
         byte[] rows(double[] x, int nIn, double[] y, int width, byte[] statuses, int n) {
-            StringBuilder sb = new StringBuilder(n * 16 * columns.size());
+            // about 20 characters per number: allocated once at its final size, under G1's humongous threshold
+            StringBuilder sb = new StringBuilder(n * 20 * columns.size());
             for (int s = 0; s < n; s++) {
                 boolean first = true;
                 for (int k : xAt) {
                     first = comma(sb, first);
-                    sb.append(ShortestDecimal.format(x[s * nIn + k]));
+                    FastDecimal.append(x[s * nIn + k], sb);
                 }
                 for (int k : yAt) {
                     first = comma(sb, first);
-                    sb.append(ShortestDecimal.format(y[s * width + k]));
+                    FastDecimal.append(y[s * width + k], sb);
                 }
                 if (status) {
                     comma(sb, first);
