@@ -135,7 +135,7 @@ public final class CompleteCommand implements Callable<Integer> {
     }
 
     /** A chunk's output: its bytes, or why its first bad row cannot be completed; its bad rows; rows moved. */
-    private record Done(byte[] bytes, String failure, List<long[]> bad, long badCount, long moved) {
+    private record Done(Ascii bytes, String failure, List<long[]> bad, long badCount, long moved) {
     }
 
     private int complete(PrintWriter out, PrintWriter err) throws CommandFailure {
@@ -205,7 +205,7 @@ public final class CompleteCommand implements Callable<Integer> {
                     if (done.failure() != null) {
                         throw new CommandFailure(Lawful.EXIT_INVALID, done.failure());
                     }
-                    os.write(done.bytes());
+                    done.bytes().writeTo(os);
                     for (long[] b : done.bad()) {
                         if (bad.size() < LINES_SHOWN) {
                             bad.add(b);

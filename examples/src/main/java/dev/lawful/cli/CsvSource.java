@@ -240,7 +240,7 @@ final class CsvSource implements RowSource {
         byte[] b = text.getBytes(StandardCharsets.UTF_8);
         List<String> names = new ArrayList<>();
         Fields f = new Fields(b, 0, b.length, separator);
-        while (f.nextAt(name, "line " + headerLine)) {
+        while (f.nextAt(name, headerLine)) {
             names.add(f.text(name, "line " + headerLine));
         }
         Map<String, Integer> seen = new HashMap<>();
@@ -340,7 +340,7 @@ final class CsvSource implements RowSource {
             Fields f = new Fields(bytes, from, to, separator);
             int count = 0;
             DataException bad = null;
-            while (f.nextAt(name, "line " + at)) {
+            while (f.nextAt(name, at)) {
                 int c = count++;
                 int j = c < wantedAt.length ? wantedAt[c] : -1;
                 if (j < 0 || bad != null) {
@@ -440,13 +440,13 @@ final class CsvSource implements RowSource {
         /**
          * Moves to the next value; false after the last.
          *
-         * @throws DataException naming {@code file} and {@code place} when a quote is not closed or text follows it
+         * @throws DataException naming {@code file} and {@code line} when a quote is not closed or text follows it
          */
-        boolean nextAt(String file, String place) {
+        boolean nextAt(String file, long line) {
             try {
                 return next();
             } catch (DataException e) {
-                throw DataException.at(file, place, null, e.getMessage());
+                throw DataException.at(file, "line " + line, null, e.getMessage());
             }
         }
 

@@ -16,8 +16,41 @@ final class FastDecimal {
     /** Plain notation from 10^-3 up to, not including, 10^7, as in {@link ShortestDecimal}. */
     private static final int PLAIN_LOW = -3;
     private static final int PLAIN_HIGH = 7;
+    private static final ThreadLocal<FastDecimal> PER_THREAD = ThreadLocal.withInitial(FastDecimal::new);
+
+    /** Schubfach's writer, reused (null when jackson-core's internals are not as expected). */
+    private final Object writer;
+    private final char[] digits = new char[24];
+    private byte[] text;
+    private int textLength;
 
     private FastDecimal() {
+        Object w = null;
+        if (MAKE != null) {
+            try {
+                w = MAKE.invoke();
+            } catch (Throwable e) {
+                w = null;
+            }
+        }
+        this.writer = w;
+    }
+
+    /** @return this thread's formatter (it keeps work buffers, so it is not shared between threads) */
+    static FastDecimal perThread() {
+        return PER_THREAD.get();
+    }
+
+    /**
+     * Like {@link #append(double, Ascii)}, into a {@code StringBuilder}.
+     *
+     * @param v  any double
+     * @param sb receives the text
+     */
+    static void append(double v, StringBuilder sb) {
+        Ascii a = new Ascii(32);
+        perThread().append(v, a);
+        sb.append(a.toString());
     }
 
     /**
@@ -26,25 +59,24 @@ final class FastDecimal {
      * @param v  any double
      * @param sb receives the text
      */
-    static void append(double v, StringBuilder sb) {
+    void append(double v, Ascii out) {
         if (v == 0 || !Double.isFinite(v)) {
-            sb.append(ShortestDecimal.format(v));
+            out.append(ShortestDecimal.format(v));
             return;
         }
-        String java = DoubleToDecimal.toString(v);
+        text(v);
         // digits and the decimal exponent of the first one, from "123.45", "0.00123" or "1.2345E-5"
-        char[] digits = new char[20];
         int n = 0;
         int point = -1;
         int exponent = 0;
-        for (int i = 0; i < java.length(); i++) {
-            char c = java.charAt(i);
+        for (int i = 0; i < textLength; i++) {
+            int c = text[i];
             if (c >= '0' && c <= '9') {
-                digits[n++] = c;
+                digits[n++] = (char) c;
             } else if (c == '.') {
                 point = n;
             } else if (c == 'E') {
-                exponent = Integer.parseInt(java.substring(i + 1));
+                exponent = exponent(text, i + 1, textLength);
                 break;
             }
         }
@@ -59,16 +91,73 @@ final class FastDecimal {
             last--;
         }
         if (last - first <= 2) {
-            sb.append(ShortestDecimal.format(v));
+            out.append(ShortestDecimal.format(v));
             return;
         }
         if (v < 0) {
-            sb.append('-');
+            out.append('-');
         }
-        layout(digits, first, last, e, sb);
+        layout(digits, first, last, e, out);
     }
 
-    private static void layout(char[] d, int first, int last, int e, StringBuilder sb) {
+    private static int exponent(byte[] b, int from, int to) {
+        boolean negative = b[from] == '-';
+        int value = 0;
+        for (int i = negative ? from + 1 : from; i < to; i++) {
+            value = 10 * value + (b[i] - '0');
+        }
+        return negative ? -value : value;
+    }
+
+    /**
+     * Puts Schubfach's text of a finite nonzero {@code v} in {@link #text}: written by the reused writer into its own
+     * buffer when jackson-core's internals are as expected (no allocation per number, which keeps the collector's
+     * heap small on files of millions of rows: docs/design-notes.md), else from its public {@code toString}.
+     */
+    private void text(double v) {
+        if (writer != null) {
+            try {
+                if ((int) TO_DECIMAL.invoke(writer, v) == 0) {
+                    text = (byte[]) BYTES.get(writer);
+                    textLength = (int) INDEX.get(writer) + 1;
+                    return;
+                }
+            } catch (Throwable e) {
+                // fall through to the public entry point
+            }
+        }
+        text = DoubleToDecimal.toString(v).getBytes(java.nio.charset.StandardCharsets.ISO_8859_1);
+        textLength = text.length;
+    }
+
+    private static final java.lang.invoke.MethodHandle TO_DECIMAL;
+    private static final java.lang.invoke.VarHandle BYTES;
+    private static final java.lang.invoke.VarHandle INDEX;
+    private static final java.lang.invoke.MethodHandle MAKE;
+
+    static {
+        java.lang.invoke.MethodHandle toDecimal = null;
+        java.lang.invoke.VarHandle bytes = null;
+        java.lang.invoke.VarHandle index = null;
+        java.lang.invoke.MethodHandle make = null;
+        try {
+            java.lang.invoke.MethodHandles.Lookup lookup = java.lang.invoke.MethodHandles.privateLookupIn(
+                    DoubleToDecimal.class, java.lang.invoke.MethodHandles.lookup());
+            toDecimal = lookup.findVirtual(DoubleToDecimal.class, "toDecimal",
+                    java.lang.invoke.MethodType.methodType(int.class, double.class));
+            bytes = lookup.findVarHandle(DoubleToDecimal.class, "bytes", byte[].class);
+            index = lookup.findVarHandle(DoubleToDecimal.class, "index", int.class);
+            make = lookup.findConstructor(DoubleToDecimal.class, java.lang.invoke.MethodType.methodType(void.class));
+        } catch (ReflectiveOperationException | RuntimeException e) {
+            make = null;
+        }
+        TO_DECIMAL = toDecimal;
+        BYTES = bytes;
+        INDEX = index;
+        MAKE = make;
+    }
+
+    private static void layout(char[] d, int first, int last, int e, Ascii sb) {
         int count = last - first;
         if (e >= PLAIN_LOW && e < PLAIN_HIGH) {
             if (e < 0) {

@@ -32,10 +32,9 @@ import java.util.Set;
  * Each chunk reads a slice of rows of every dataset ({@code Dataset.getData(offset, shape)}), so memory stays bounded.
  * Rows are named {@code row N}, counted from 1.
  */
-final class Hdf5Source implements RowSource {
+final class Hdf5Source extends BinarySource {
     private final String name;
     private final HdfFile file;
-    private final long size;
     private final List<Dataset> datasets;
     private final List<Integer> firstColumn;
     private final List<String> columns;
@@ -45,9 +44,9 @@ final class Hdf5Source implements RowSource {
 
     private Hdf5Source(String name, HdfFile file, long size, List<Dataset> datasets, List<Integer> firstColumn,
                        List<String> columns, long rows) {
+        super(name, columns, size, "its dataset names");
         this.name = name;
         this.file = file;
-        this.size = size;
         this.datasets = datasets;
         this.firstColumn = firstColumn;
         this.columns = columns;
@@ -140,31 +139,6 @@ final class Hdf5Source implements RowSource {
             out.add(d.getName() + "[" + k + "]");
         }
         return out;
-    }
-
-    @Override
-    public String name() {
-        return name;
-    }
-
-    @Override
-    public List<String> columns() {
-        return columns;
-    }
-
-    @Override
-    public long size() {
-        return size;
-    }
-
-    @Override
-    public String headerPlace() {
-        return "its dataset names";
-    }
-
-    @Override
-    public String place(long tag) {
-        return "row " + tag;
     }
 
     @Override

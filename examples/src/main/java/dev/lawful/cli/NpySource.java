@@ -15,19 +15,16 @@ import java.util.List;
  * has no column names, so {@code --columns} gives them, one per column in order. Rows are named {@code row N},
  * counted from 1.
  */
-final class NpySource implements RowSource {
-    private final String name;
+final class NpySource extends BinarySource {
     private final FileChannel channel;
     private final NpyFormat format;
-    private final List<String> columns;
     private final int rowsPerChunk;
     private long next;
 
-    private NpySource(String name, FileChannel channel, NpyFormat format, List<String> columns) {
-        this.name = name;
+    private NpySource(String name, FileChannel channel, NpyFormat format, List<String> columns) throws IOException {
+        super(name, columns, channel.size(), "--columns");
         this.channel = channel;
         this.format = format;
-        this.columns = columns;
         this.rowsPerChunk = BinaryChunk.rowsPerChunk(format.width() * format.itemSize());
     }
 
@@ -81,35 +78,6 @@ final class NpySource implements RowSource {
         ByteBuffer all = ByteBuffer.allocate(length);
         ch.read(all, 0);
         return java.util.Arrays.copyOf(all.array(), all.position());
-    }
-
-    @Override
-    public String name() {
-        return name;
-    }
-
-    @Override
-    public List<String> columns() {
-        return columns;
-    }
-
-    @Override
-    public long size() {
-        try {
-            return channel.size();
-        } catch (IOException e) {
-            return -1;
-        }
-    }
-
-    @Override
-    public String headerPlace() {
-        return "--columns";
-    }
-
-    @Override
-    public String place(long tag) {
-        return "row " + tag;
     }
 
     @Override

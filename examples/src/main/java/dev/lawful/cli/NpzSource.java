@@ -19,10 +19,9 @@ import java.util.zip.ZipFile;
  * (the names of a vector element in a law file). Every member has the same number of rows. The members are read
  * side by side, a chunk of rows from each at a time, so memory stays bounded whatever the row count.
  */
-final class NpzSource implements RowSource {
+final class NpzSource extends BinarySource {
     private final String name;
     private final ZipFile zip;
-    private final long size;
     private final List<Member> members;
     private final List<String> columns;
     private final long rows;
@@ -34,9 +33,9 @@ final class NpzSource implements RowSource {
     }
 
     private NpzSource(String name, ZipFile zip, long size, List<Member> members, List<String> columns, long rows) {
+        super(name, columns, size, "its member names");
         this.name = name;
         this.zip = zip;
-        this.size = size;
         this.members = members;
         this.columns = columns;
         this.rows = rows;
@@ -123,31 +122,6 @@ final class NpzSource implements RowSource {
         byte[] all = java.util.Arrays.copyOf(first, length);
         System.arraycopy(rest, 0, all, first.length, rest.length);
         return NpyFormat.parse(name, all);
-    }
-
-    @Override
-    public String name() {
-        return name;
-    }
-
-    @Override
-    public List<String> columns() {
-        return columns;
-    }
-
-    @Override
-    public long size() {
-        return size;
-    }
-
-    @Override
-    public String headerPlace() {
-        return "its member names";
-    }
-
-    @Override
-    public String place(long tag) {
-        return "row " + tag;
     }
 
     @Override

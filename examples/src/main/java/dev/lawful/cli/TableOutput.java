@@ -74,9 +74,9 @@ abstract class TableOutput {
      * @param width  the output width
      * @param status each row's status, or null
      * @param n      the rows
-     * @return their bytes
+     * @return their bytes (as written, not necessarily text)
      */
-    abstract byte[] rows(double[] x, int nIn, double[] y, int width, byte[] status, int n);
+    abstract Ascii rows(double[] x, int nIn, double[] y, int width, byte[] status, int n);
 
     /**
      * Completes the file once every row is written (the .npy header then gets the row count).
@@ -116,18 +116,19 @@ abstract class TableOutput {
         }
 
         @Override
-        byte[] rows(double[] x, int nIn, double[] y, int width, byte[] statuses, int n) {
-            // about 20 characters per number: allocated once at its final size, under G1's humongous threshold
-            StringBuilder sb = new StringBuilder(n * 20 * columns.size());
+        Ascii rows(double[] x, int nIn, double[] y, int width, byte[] statuses, int n) {
+            // about 20 characters per number: allocated once, below G1's humongous threshold for a chunk
+            Ascii sb = new Ascii(n * 20 * columns.size());
+            FastDecimal digits = FastDecimal.perThread();
             for (int s = 0; s < n; s++) {
                 boolean first = true;
                 for (int k : xAt) {
                     first = comma(sb, first);
-                    FastDecimal.append(x[s * nIn + k], sb);
+                    digits.append(x[s * nIn + k], sb);
                 }
                 for (int k : yAt) {
                     first = comma(sb, first);
-                    FastDecimal.append(y[s * width + k], sb);
+                    digits.append(y[s * width + k], sb);
                 }
                 if (status) {
                     comma(sb, first);
@@ -135,10 +136,10 @@ abstract class TableOutput {
                 }
                 sb.append('\n');
             }
-            return sb.toString().getBytes(StandardCharsets.UTF_8);
+            return sb;
         }
 
-        private static boolean comma(StringBuilder sb, boolean first) {
+        private static boolean comma(Ascii sb, boolean first) {
             if (!first) {
                 sb.append(',');
             }
@@ -165,7 +166,7 @@ abstract class TableOutput {
         }
 
         @Override
-        byte[] rows(double[] x, int nIn, double[] y, int width, byte[] status, int n) {
+        Ascii rows(double[] x, int nIn, double[] y, int width, byte[] status, int n) {
             ByteBuffer b = ByteBuffer.allocate(n * columns.size() * Double.BYTES).order(ByteOrder.LITTLE_ENDIAN);
             for (int s = 0; s < n; s++) {
                 for (int k : xAt) {
@@ -175,7 +176,7 @@ abstract class TableOutput {
                     b.putDouble(y[s * width + k]);
                 }
             }
-            return b.array();
+            return Ascii.wrap(b.array());
         }
 
         @Override
