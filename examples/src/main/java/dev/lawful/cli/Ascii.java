@@ -3,8 +3,8 @@ package dev.lawful.cli;
 import java.util.Arrays;
 
 /**
- * A growable buffer of ASCII text as bytes, for formatting rows on a worker without a {@code StringBuilder} and the
- * two copies its text costs on the way to bytes. Characters beyond Latin-1 are refused (numbers and status words
+ * A growable byte buffer for formatting rows on a worker: ASCII text (without a {@code StringBuilder} and the two
+ * copies its text costs on the way to bytes) or little-endian float64 values. Characters beyond Latin-1 are refused (numbers and status words
  * are ASCII; a header goes through {@link dev.lawful.io.CsvWriter}).
  */
 final class Ascii {
@@ -66,15 +66,19 @@ final class Ascii {
         out.write(bytes, 0, length);
     }
 
-    /**
-     * @param bytes text already encoded
-     * @return a buffer holding exactly {@code bytes} (not copied)
-     */
-    static Ascii wrap(byte[] bytes) {
-        Ascii a = new Ascii(0);
-        a.bytes = bytes;
-        a.length = bytes.length;
-        return a;
+    /** Empties the buffer, keeping its capacity. */
+    void clear() {
+        length = 0;
+    }
+
+    /** @return this buffer, with the 8 bytes of {@code v} appended in little-endian order (a .npy float64) */
+    Ascii appendLittleEndian(double v) {
+        room(8);
+        long bits = Double.doubleToRawLongBits(v);
+        for (int i = 0; i < 8; i++) {
+            bytes[length++] = (byte) (bits >>> (8 * i));
+        }
+        return this;
     }
 
     @Override

@@ -54,10 +54,15 @@ final class BinaryChunk implements RowSource.Chunk {
     @Override
     public RowSource.Rows parse(int[] columnOf, List<String> names) {
         int k = columnOf.length;
-        double[] values = new double[rows * k];
-        long[] tags = new long[rows];
+        double[] values = Scratch.doubles(Scratch.VALUES, rows * k);
+        long[] tags = Scratch.longs(rows);
         for (int s = 0; s < rows; s++) {
             tags[s] = firstRow + s + 1;
+            for (int j = 0; j < k; j++) {
+                if (columnOf[j] < 0) {
+                    values[s * k + j] = 0;
+                }
+            }
         }
         List<RowSource.NonFinite> odd = new ArrayList<>();
         for (Part p : parts) {

@@ -206,6 +206,7 @@ public final class CompleteCommand implements Callable<Integer> {
                         throw new CommandFailure(Lawful.EXIT_INVALID, done.failure());
                     }
                     done.bytes().writeTo(os);
+                    table.recycle(done.bytes());
                     for (long[] b : done.bad()) {
                         if (bad.size() < LINES_SHOWN) {
                             bad.add(b);
@@ -234,8 +235,8 @@ public final class CompleteCommand implements Callable<Integer> {
                        double[] z, Work w, TableOutput table, int[] freeAt, boolean limits) {
         int n = rows.count();
         int width = laws.outputWidth();
-        double[] y = new double[n * width];
-        byte[] status = keepGoing ? new byte[n] : null;
+        double[] y = Scratch.doubles(Scratch.Y, n * width);
+        byte[] status = keepGoing ? Scratch.zeroBytes(n) : null;
         try {
             completion.forward(x, z, n, y, status, w.completion);
         } catch (EnforcementException e) {

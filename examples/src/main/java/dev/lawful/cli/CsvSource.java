@@ -50,6 +50,9 @@ final class CsvSource implements RowSource {
     private final List<String> header;
     private final long headerLine;
     private final byte separator;
+    /** Chunk buffers parsed and free again: the reader reuses them instead of allocating one per chunk. */
+    private final java.util.concurrent.ArrayBlockingQueue<byte[]> spare = new java.util.concurrent.ArrayBlockingQueue<>(
+            64);
 
     private CsvSource(String name, InputStream in, long size) throws IOException {
         this.name = name;
@@ -144,8 +147,12 @@ final class CsvSource implements RowSource {
                 fill();
                 continue;
             }
-            byte[] bytes = Arrays.copyOfRange(buf, start, cut);
-            CsvChunk chunk = new CsvChunk(bytes, line, rows);
+            byte[] bytes = spare.poll();
+            if (bytes == null || bytes.length < cut - start) {
+                bytes = new byte[Math.max(cut - start, CHUNK_BYTES + (CHUNK_BYTES >> 2))];
+            }
+            System.arraycopy(buf, start, bytes, 0, cut - start);
+            CsvChunk chunk = new CsvChunk(bytes, cut - start, line, rows);
             line += chunk.lines;
             rows += chunk.rows;
             start = cut;
@@ -275,32 +282,34 @@ final class CsvSource implements RowSource {
     /** Lines cut from the input, with the line and row they start at. */
     private final class CsvChunk implements Chunk {
         final byte[] bytes;
+        final int length;
         final long firstLine;
         final long firstRow;
         long lines;
         int rows;
 
-        CsvChunk(byte[] bytes, long firstLine, long firstRow) {
+        CsvChunk(byte[] bytes, int length, long firstLine, long firstRow) {
             this.bytes = bytes;
+            this.length = length;
             this.firstLine = firstLine;
             this.firstRow = firstRow;
-            for (int pos = 0; pos < bytes.length; ) {
+            for (int pos = 0; pos < length; ) {
                 int e = pos;
-                while (e < bytes.length && bytes[e] != '\n' && bytes[e] != '\r') {
+                while (e < length && bytes[e] != '\n' && bytes[e] != '\r') {
                     e++;
                 }
                 if (!skipped(bytes, pos, e)) {
                     rows++;
                 }
                 lines++;
-                pos = e < bytes.length && bytes[e] == '\r' && e + 1 < bytes.length && bytes[e + 1] == '\n' ? e + 2
+                pos = e < length && bytes[e] == '\r' && e + 1 < length && bytes[e + 1] == '\n' ? e + 2
                         : e + 1;
             }
         }
 
         @Override
         public long bytes() {
-            return bytes.length;
+            return length;
         }
 
         @Override
@@ -314,24 +323,30 @@ final class CsvSource implements RowSource {
                     wantedAt[columnOf[j]] = j;
                 }
             }
-            double[] values = new double[rows * k];
-            long[] tags = new long[rows];
+            double[] values = Scratch.doubles(Scratch.VALUES, rows * k);
+            long[] tags = Scratch.longs(rows);
             List<NonFinite> notes = new ArrayList<>();
             long at = firstLine;
             int r = 0;
-            for (int pos = 0; pos < bytes.length; ) {
+            for (int pos = 0; pos < length; ) {
                 int e = pos;
-                while (e < bytes.length && bytes[e] != '\n' && bytes[e] != '\r') {
+                while (e < length && bytes[e] != '\n' && bytes[e] != '\r') {
                     e++;
                 }
                 if (!skipped(bytes, pos, e)) {
+                    for (int j = 0; j < k; j++) {
+                        if (columnOf[j] < 0) {
+                            values[r * k + j] = 0;
+                        }
+                    }
                     row(pos, e, at, wantedAt, names, values, r * k, notes);
                     tags[r++] = at;
                 }
                 at++;
-                pos = e < bytes.length && bytes[e] == '\r' && e + 1 < bytes.length && bytes[e + 1] == '\n' ? e + 2
+                pos = e < length && bytes[e] == '\r' && e + 1 < length && bytes[e + 1] == '\n' ? e + 2
                         : e + 1;
             }
+            spare.offer(bytes);
             return new Rows(firstRow, rows, values, tags, notes);
         }
 
@@ -377,18 +392,18 @@ final class CsvSource implements RowSource {
         }
 
         private void checkUtf8() {
-            for (int i = 0; i < bytes.length; i++) {
+            for (int i = 0; i < length; i++) {
                 if (bytes[i] < 0) {
                     try {
                         StandardCharsets.UTF_8.newDecoder().onMalformedInput(CodingErrorAction.REPORT)
-                                .onUnmappableCharacter(CodingErrorAction.REPORT).decode(ByteBuffer.wrap(bytes));
+                                .onUnmappableCharacter(CodingErrorAction.REPORT).decode(ByteBuffer.wrap(bytes, 0, length));
                         return;
                     } catch (CharacterCodingException e) {
                         long bad = firstLine;
-                        ByteBuffer probe = ByteBuffer.wrap(bytes);
+                        ByteBuffer probe = ByteBuffer.wrap(bytes, 0, length);
                         int good = validPrefix(probe);
                         for (int p = 0; p < good; p++) {
-                            if (bytes[p] == '\n' || bytes[p] == '\r' && (p + 1 >= bytes.length || bytes[p + 1] != '\n')) {
+                            if (bytes[p] == '\n' || bytes[p] == '\r' && (p + 1 >= length || bytes[p + 1] != '\n')) {
                                 bad++;
                             }
                         }

@@ -89,8 +89,8 @@ final class Streamed<W> {
             workspaces = pipeline.run(source::next, (chunk, w) -> {
                 RowSource.Rows rows = chunk.parse(sel.columnOf(), sel.names());
                 int n = rows.count();
-                double[] x = new double[n * inputWidth];
-                double[] rest = new double[n * (k - inputWidth)];
+                double[] x = Scratch.doubles(Scratch.X, n * inputWidth);
+                double[] rest = Scratch.doubles(Scratch.REST, n * (k - inputWidth));
                 double[] v = rows.values();
                 for (int s = 0; s < n; s++) {
                     System.arraycopy(v, s * k, x, s * inputWidth, inputWidth);

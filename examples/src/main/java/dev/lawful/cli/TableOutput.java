@@ -5,7 +5,6 @@ import dev.lawful.enforce.SampleStatus;
 import dev.lawful.io.CsvWriter;
 import java.io.IOException;
 import java.nio.ByteBuffer;
-import java.nio.ByteOrder;
 import java.nio.channels.FileChannel;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.StandardOpenOption;
@@ -55,6 +54,29 @@ abstract class TableOutput {
     private static int[] present(List<String> names, DataFiles.Selection sel, List<String> columns) {
         return java.util.stream.IntStream.range(0, names.size()).filter(k -> sel.has(names.get(k)))
                 .peek(k -> columns.add(names.get(k))).toArray();
+    }
+
+    /** Row buffers written and free again, reused by the workers instead of one new buffer per chunk. */
+    private final java.util.concurrent.ArrayBlockingQueue<Ascii> spare = new java.util.concurrent.ArrayBlockingQueue<>(
+            64);
+
+    /** @return a cleared buffer of at least {@code capacity} bytes, reused when one is free */
+    Ascii buffer(int capacity) {
+        Ascii a = spare.poll();
+        if (a == null) {
+            a = new Ascii(capacity);
+        }
+        a.clear();
+        return a;
+    }
+
+    /**
+     * Hands a buffer back once its bytes are written.
+     *
+     * @param written a buffer {@link #rows} returned
+     */
+    void recycle(Ascii written) {
+        spare.offer(written);
     }
 
     /** @return the column names when the format does not store them (.npy), else null */
@@ -118,7 +140,7 @@ abstract class TableOutput {
         @Override
         Ascii rows(double[] x, int nIn, double[] y, int width, byte[] statuses, int n) {
             // about 20 characters per number: allocated once, below G1's humongous threshold for a chunk
-            Ascii sb = new Ascii(n * 20 * columns.size());
+            Ascii sb = buffer(n * 20 * columns.size());
             FastDecimal digits = FastDecimal.perThread();
             for (int s = 0; s < n; s++) {
                 boolean first = true;
@@ -167,16 +189,16 @@ abstract class TableOutput {
 
         @Override
         Ascii rows(double[] x, int nIn, double[] y, int width, byte[] status, int n) {
-            ByteBuffer b = ByteBuffer.allocate(n * columns.size() * Double.BYTES).order(ByteOrder.LITTLE_ENDIAN);
+            Ascii out = buffer(n * columns.size() * Double.BYTES);
             for (int s = 0; s < n; s++) {
                 for (int k : xAt) {
-                    b.putDouble(x[s * nIn + k]);
+                    out.appendLittleEndian(x[s * nIn + k]);
                 }
                 for (int k : yAt) {
-                    b.putDouble(y[s * width + k]);
+                    out.appendLittleEndian(y[s * width + k]);
                 }
             }
-            return Ascii.wrap(b.array());
+            return out;
         }
 
         @Override
