@@ -30,6 +30,16 @@ public final class NearestRank {
      * @throws IllegalArgumentException when {@code n < 1} or {@code percent} is not in [0, 100]
      */
     public static int index(int n, double percent) {
+        return (int) rank(n, percent) - 1;
+    }
+
+    /**
+     * @param n       how many values, at least 1 (below 2<sup>46</sup>, so that p·n is exact for a whole-number p)
+     * @param percent p, from 0 to 100
+     * @return the 1-based nearest rank of the p-th percentile among n sorted values: ⌈p·n/100⌉, at least 1
+     * @throws IllegalArgumentException when {@code n < 1} or {@code percent} is not in [0, 100]
+     */
+    public static long rank(long n, double percent) {
         if (n < 1) {
             throw new IllegalArgumentException("a percentile needs at least one value, found " + n);
         }
@@ -39,6 +49,6 @@ public final class NearestRank {
         // for a whole-number p, p·n is exact and p·n/100 is at least 0.01 from any integer it is not equal to, far
         // more than its rounding error, so the ceiling is the exact rank
         double rank = Math.ceil(percent * n / 100);
-        return (int) Math.max(0, Math.min(n - 1, rank - 1));
+        return (long) Math.max(1, Math.min(n, rank));
     }
 }

@@ -1,11 +1,9 @@
 package dev.lawful.enforce;
 
 import dev.lawful.algebra.ExpandedLaws;
-import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.io.JsonWriter;
 import java.util.ArrayList;
-import java.util.Arrays;
 import java.util.List;
 import java.util.Objects;
 import java.util.function.IntFunction;
@@ -25,8 +23,11 @@ import java.util.function.IntFunction;
  * or infinite residual never is. The report is within tolerance when every sample is, for every law.
  *
  * <p>Cost: one evaluation of the residuals in blocks of {@value #CHUNK} samples (work arrays allocated once per
- * report), plus two doubles per sample and scalar law held until the percentiles are taken, and a sort of each.
- * Immutable once made.
+ * report). Built by a {@link ResidualAccumulator}, which also builds one from chunks, threads or machines in
+ * constant memory and merges partial reports exactly: the mean is the exact sum rounded once, and the 99th
+ * percentile is exact up to {@value PercentileSketch#EXACT_LIMIT} finite samples per law, beyond which it comes
+ * from log-spaced buckets with a relative error below 2<sup>-10</sup> ({@link #exactPercentile()}). Immutable
+ * once made.
  */
 public final class ResidualReport {
     /** The percentile reported as {@code p99}. */
@@ -38,12 +39,15 @@ public final class ResidualReport {
     private final double tolerance;
     private final List<LawResiduals> laws;
     private final int failingSamples;
+    private final boolean exactPercentile;
 
-    private ResidualReport(int samples, double tolerance, List<LawResiduals> laws, int failingSamples) {
+    ResidualReport(int samples, double tolerance, List<LawResiduals> laws, int failingSamples,
+                   boolean exactPercentile) {
         this.samples = samples;
         this.tolerance = tolerance;
         this.laws = List.copyOf(laws);
         this.failingSamples = failingSamples;
+        this.exactPercentile = exactPercentile;
     }
 
     /**
@@ -60,17 +64,9 @@ public final class ResidualReport {
      *                                  negative or NaN
      */
     public static ResidualReport of(LawSet laws, double[] x, double[] y, int batch, double tolerance) {
-        Collector c = new Collector(laws, batch, tolerance);
-        c.check(x == null ? -1 : x.length, y == null ? -1 : y.length);
-        for (int from = 0; from < batch; from += CHUNK) {
-            int n = Math.min(CHUNK, batch - from);
-            if (c.inputWidth > 0) {
-                System.arraycopy(x, from * c.inputWidth, c.x, 0, n * c.inputWidth);
-            }
-            System.arraycopy(y, from * c.outputWidth, c.y, 0, n * c.outputWidth);
-            c.add(from, n);
-        }
-        return c.finish();
+        ResidualAccumulator a = new ResidualAccumulator(laws, tolerance);
+        a.add(x, y, batch, 0, null);
+        return a.report();
     }
 
     /**
@@ -88,21 +84,9 @@ public final class ResidualReport {
      *                                  negative or NaN
      */
     public static ResidualReport of(LawSet laws, float[] x, float[] y, int batch, double tolerance) {
-        Collector c = new Collector(laws, batch, tolerance);
-        c.check(x == null ? -1 : x.length, y == null ? -1 : y.length);
-        for (int from = 0; from < batch; from += CHUNK) {
-            int n = Math.min(CHUNK, batch - from);
-            widen(x, from * c.inputWidth, c.x, n * c.inputWidth);
-            widen(y, from * c.outputWidth, c.y, n * c.outputWidth);
-            c.add(from, n);
-        }
-        return c.finish();
-    }
-
-    private static void widen(float[] from, int offset, double[] to, int n) {
-        for (int i = 0; i < n; i++) {
-            to[i] = from[offset + i];
-        }
+        ResidualAccumulator a = new ResidualAccumulator(laws, tolerance);
+        a.add(x, y, batch, 0, null);
+        return a.report();
     }
 
     // ---- results ---------------------------------------------------------------------------------------------
@@ -134,6 +118,15 @@ public final class ResidualReport {
             }
         }
         throw new IllegalArgumentException("no scalar law named '" + name + "'");
+    }
+
+    /**
+     * @return whether every p99 of the report is the exact nearest-rank value: true when no law had more than
+     *         {@value PercentileSketch#EXACT_LIMIT} finite samples; otherwise some p99 comes from the log-spaced
+     *         buckets of {@link PercentileSketch}, at most 2<sup>-10</sup> of itself above the exact value
+     */
+    public boolean exactPercentile() {
+        return exactPercentile;
     }
 
     /** @return whether every sample is within tolerance for every law */
@@ -183,7 +176,9 @@ public final class ResidualReport {
 
     /**
      * Writes the report as one JSON object: {@code samples}, {@code tolerance}, {@code withinTolerance},
-     * {@code failingSamples}, {@code percentile} ({@code {percent: 99, method: "nearest-rank"}}),
+     * {@code failingSamples}, {@code percentile} ({@code {percent: 99, method: "nearest-rank", relativeError: 0}} when every p99 is
+     * exact, {@code method: "nearest-rank-log-buckets", relativeError: 2^-10} when some come from the buckets of
+     * {@link PercentileSketch}; see {@link #exactPercentile()}),
      * {@code histogramBins} (the bin labels of {@link ResidualHistogram#label(int)}) and {@code laws}, one object
      * per scalar law with {@code name}, {@code law}, {@code unit} (as written, {@code ""} for a pure number),
      * {@code finite}, {@code nan}, {@code infinite}, {@code overTolerance}, {@code worstSample} (0-based, -1 for an
@@ -199,8 +194,14 @@ public final class ResidualReport {
                 .name("tolerance").value(tolerance)
                 .name("withinTolerance").value(withinTolerance())
                 .name("failingSamples").value(failingSamples);
-        json.name("percentile").beginObject().name("percent").value(PERCENT).name("method").value("nearest-rank")
-                .endObject();
+        json.name("percentile").beginObject().name("percent").value(PERCENT).name("method")
+                .value(exactPercentile ? "nearest-rank" : "nearest-rank-log-buckets").name("relativeError");
+        if (exactPercentile) {
+            json.value(0);
+        } else {
+            json.value(PercentileSketch.RELATIVE_ERROR);
+        }
+        json.endObject();
         json.name("histogramBins").beginArray();
         for (int b = 0; b < ResidualHistogram.BINS; b++) {
             json.value(ResidualHistogram.label(b));
@@ -243,153 +244,5 @@ public final class ResidualReport {
     @Override
     public String toString() {
         return toTable();
-    }
-
-    // ---- the one kernel both entry points feed ---------------------------------------------------------------
-
-    /** Work arrays and running counts of one report. */
-    private static final class Collector {
-        final LawSet set;
-        final LawEvaluator evaluator;
-        final LawEvaluator.Workspace workspace;
-        final int inputWidth;
-        final int outputWidth;
-        final int lawCount;
-        final int batch;
-        final double tolerance;
-        final double[] factor;
-        /** One chunk of inputs and outputs, widened or copied. */
-        final double[] x;
-        final double[] y;
-        final double[] residual;
-        final double[] scale;
-        /** Per law: |r| in the law's unit and the relative residual of each finite sample, in sample order. */
-        final double[][] absolute;
-        final double[][] relative;
-        final int[] finite;
-        final int[] notANumber;
-        final int[] infinite;
-        final int[] over;
-        final int[] worst;
-        final double[] worstRelative;
-        final boolean[] worstNonFinite;
-        final int[][] histogram;
-        final boolean[] failing;
-
-        Collector(LawSet set, int batch, double tolerance) {
-            Objects.requireNonNull(set, "laws");
-            if (batch < 0) {
-                throw new IllegalArgumentException("batch must be >= 0, found " + batch);
-            }
-            if (!(tolerance >= 0)) {
-                throw new IllegalArgumentException("the tolerance must be >= 0, found " + tolerance);
-            }
-            this.set = set;
-            this.evaluator = set.evaluator();
-            this.workspace = evaluator.newWorkspace();
-            this.inputWidth = set.inputWidth();
-            this.outputWidth = set.outputWidth();
-            this.lawCount = evaluator.lawCount();
-            this.batch = batch;
-            this.tolerance = tolerance;
-            ExpandedLaws expanded = set.expand();
-            this.factor = new double[lawCount];
-            for (int i = 0; i < lawCount; i++) {
-                factor[i] = expanded.unit(i).factor();
-            }
-            int chunk = Math.min(CHUNK, batch);
-            this.x = new double[chunk * inputWidth];
-            this.y = new double[chunk * outputWidth];
-            this.residual = new double[chunk * lawCount];
-            this.scale = new double[chunk * lawCount];
-            this.absolute = new double[lawCount][batch];
-            this.relative = new double[lawCount][batch];
-            this.finite = new int[lawCount];
-            this.notANumber = new int[lawCount];
-            this.infinite = new int[lawCount];
-            this.over = new int[lawCount];
-            this.worst = new int[lawCount];
-            Arrays.fill(worst, -1);
-            this.worstRelative = new double[lawCount];
-            Arrays.fill(worstRelative, -1);
-            this.worstNonFinite = new boolean[lawCount];
-            this.histogram = new int[lawCount][ResidualHistogram.BINS];
-            this.failing = new boolean[batch];
-        }
-
-        void check(int xLength, int yLength) {
-            long needX = (long) batch * inputWidth;
-            long needY = (long) batch * outputWidth;
-            if (needX > 0 && xLength < needX) {
-                throw new IllegalArgumentException("x (inputs) must hold at least " + needX + " values for this"
-                        + " batch, found " + Math.max(0, xLength));
-            }
-            if (needY > 0 && yLength < needY) {
-                throw new IllegalArgumentException("y (outputs) must hold at least " + needY + " values for this"
-                        + " batch, found " + Math.max(0, yLength));
-            }
-        }
-
-        /** Adds samples {@code first .. first+n-1}, whose values are in {@link #x} and {@link #y}. */
-        void add(int first, int n) {
-            evaluator.residuals(x, y, n, residual, scale, workspace);
-            for (int s = 0; s < n; s++) {
-                int sample = first + s;
-                int row = s * lawCount;
-                for (int i = 0; i < lawCount; i++) {
-                    double r = residual[row + i];
-                    if (Double.isNaN(r) || Double.isInfinite(r)) {
-                        if (Double.isNaN(r)) {
-                            notANumber[i]++;
-                        } else {
-                            infinite[i]++;
-                        }
-                        over[i]++;
-                        failing[sample] = true;
-                        if (!worstNonFinite[i]) {
-                            worstNonFinite[i] = true;
-                            worst[i] = sample;
-                        }
-                        continue;
-                    }
-                    double magnitude = Math.abs(r);
-                    double sc = scale[row + i];
-                    double rel = sc == 0 ? (magnitude == 0 ? 0 : Double.POSITIVE_INFINITY) : magnitude / sc;
-                    int k = finite[i]++;
-                    absolute[i][k] = magnitude / factor[i];
-                    relative[i][k] = rel;
-                    histogram[i][ResidualHistogram.bin(rel)]++;
-                    if (!(rel <= tolerance)) {
-                        over[i]++;
-                        failing[sample] = true;
-                    }
-                    if (!worstNonFinite[i] && rel > worstRelative[i]) {
-                        worstRelative[i] = rel;
-                        worst[i] = sample;
-                    }
-                }
-            }
-        }
-
-        ResidualReport finish() {
-            ExpandedLaws expanded = set.expand();
-            List<LawResiduals> out = new ArrayList<>(lawCount);
-            for (int i = 0; i < lawCount; i++) {
-                List<Integer> bins = new ArrayList<>(ResidualHistogram.BINS);
-                for (int count : histogram[i]) {
-                    bins.add(count);
-                }
-                out.add(new LawResiduals(expanded.name(i), expanded.law(i).name(), expanded.unit(i), batch,
-                        notANumber[i], infinite[i], over[i], worst[i], ResidualStats.of(absolute[i], finite[i]),
-                        ResidualStats.of(relative[i], finite[i]), bins));
-            }
-            int failed = 0;
-            for (boolean f : failing) {
-                if (f) {
-                    failed++;
-                }
-            }
-            return new ResidualReport(batch, tolerance, out, failed);
-        }
     }
 }

@@ -389,7 +389,8 @@ class ResidualReportTest {
                   "failingSamples": 1,
                   "percentile": {
                     "percent": 99,
-                    "method": "nearest-rank"
+                    "method": "nearest-rank",
+                    "relativeError": 0
                   },
                   "histogramBins": [
                 """ + "    " + bins + "\n  ],\n"), json);

@@ -37,8 +37,6 @@ class ReadmeWalkThroughTest {
 
     @Test
     void theWalkThroughTrainsSavesAndReloadsAConstrainedNetwork(@TempDir Path temp) throws Exception {
-        File folder = temp.toFile();
-        List<Double> losses = new ArrayList<>();
         // walk-through:start
         String lawText = String.join("\n",
                 "# a pipe junction: the water that flows in flows out",
@@ -48,6 +46,8 @@ class ReadmeWalkThroughTest {
                 "complete q_out[2]",
                 "");
         LawSpec spec = LawSpec.of(lawText);
+        List<Double> losses = new ArrayList<>();                       // the training loss after each epoch
+        File folder = Files.createTempDirectory("junction").toFile();  // where the network is saved
 
         // your data: features are the law inputs, labels all outputs, both in declared order and units
         // (made up here: the split between the outflows depends on the inflows)
@@ -93,6 +93,8 @@ class ReadmeWalkThroughTest {
         String table = report.toTable();           // largest, mean and 99th-percentile residual of each law
         // walk-through:end
 
+        file.deleteOnExit();
+        folder.deleteOnExit();
         assertTrue(losses.get(losses.size() - 1) < 0.2 * losses.get(0), "the loss falls: " + losses.get(0)
                 + " -> " + losses.get(losses.size() - 1));
         INDArray before = net.outputSingle(data.getFeatures());
@@ -111,6 +113,32 @@ class ReadmeWalkThroughTest {
         int outside = RoundingBound.of(c).evaluate(seen, null, vertex.getOutputScaling().toPhysical(yn, rows), rows,
                 vertex.getOutputScaling().floatOutputError(yn, rows), residuals, bounds);
         assertEquals(0, outside, "samples outside the documented bound");
+    }
+
+    /**
+     * The README's import block and code block, pasted alone into a method of an empty class, compile: the block uses
+     * nothing it does not declare (a reader pasting it gets no undefined names). Compiled with the JDK's own compiler
+     * (javax.tools) against the test class path.
+     */
+    @Test
+    void theReadmeBlockCompilesAlone(@TempDir Path temp) throws IOException {
+        String readme = Files.readString(Path.of("../README.md"), StandardCharsets.UTF_8);
+        int imports = readme.indexOf("// the walk-through's imports");
+        String importBlock = readme.substring(imports, readme.indexOf("```", imports));
+        int code = readme.indexOf("```java", readme.indexOf("```", imports) + 3) + "```java".length();
+        String block = readme.substring(code, readme.indexOf("```", code));
+        String source = importBlock + "\npublic class Pasted {\n    public static void main(String[] args) throws"
+                + " Exception {\n" + block + "\n    }\n}\n";
+        Path file = Files.writeString(temp.resolve("Pasted.java"), source, StandardCharsets.UTF_8);
+        javax.tools.JavaCompiler compiler = javax.tools.ToolProvider.getSystemJavaCompiler();
+        java.io.StringWriter messages = new java.io.StringWriter();
+        int status = compiler.run(null, null, new java.io.PrintStream(new java.io.ByteArrayOutputStream()) {
+            @Override
+            public void write(byte[] b, int off, int len) {
+                messages.write(new String(b, off, len, StandardCharsets.UTF_8));
+            }
+        }, "-d", temp.toString(), "-classpath", classPath(), file.toString());
+        assertEquals(0, status, "the README block does not compile alone:\n" + messages + "\n" + source);
     }
 
     @Test
@@ -135,6 +163,29 @@ class ReadmeWalkThroughTest {
             if (line.startsWith("import ") && !line.startsWith("import dev.lawful.dl4j.")) {
                 assertTrue(test.contains("\n" + line + "\n"), "README import not used by the test: " + line);
             }
+        }
+    }
+
+    /**
+     * The test's class path as javac needs it: {@code java.class.path}, or, when Surefire runs the tests from a
+     * manifest-only jar, the entries of that jar's {@code Class-Path} (file URLs, per the JAR file specification).
+     */
+    private static String classPath() throws IOException {
+        String path = System.getProperty("java.class.path");
+        if (path.contains(java.io.File.pathSeparator) || !path.endsWith(".jar")) {
+            return path;
+        }
+        try (java.util.jar.JarFile jar = new java.util.jar.JarFile(path)) {
+            String entries = jar.getManifest() == null ? null
+                    : jar.getManifest().getMainAttributes().getValue("Class-Path");
+            if (entries == null) {
+                return path;
+            }
+            List<String> files = new ArrayList<>();
+            for (String entry : entries.trim().split("\\s+")) {
+                files.add(Path.of(java.net.URI.create(entry)).toString());
+            }
+            return String.join(java.io.File.pathSeparator, files);
         }
     }
 }

@@ -134,6 +134,10 @@ public final class CheckCommand implements Callable<Integer> {
         if (e instanceof AccessDeniedException) {
             return "permission denied";
         }
+        if (e instanceof java.nio.file.FileAlreadyExistsException
+                || e instanceof java.nio.file.NotDirectoryException) {
+            return ((FileSystemException) e).getFile() + " is a file, not a folder";
+        }
         if (e instanceof FileSystemException f && f.getReason() != null) {
             return f.getReason();
         }

@@ -8,6 +8,7 @@ import dev.lawful.examples.demo.Scenarios;
 import java.io.IOException;
 import java.io.PrintStream;
 import java.io.PrintWriter;
+import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
 import java.util.concurrent.Callable;
@@ -63,7 +64,7 @@ public final class DemoCommand implements Callable<Integer> {
     @Option(names = "--epochs", paramLabel = "N", description = "training epochs (default: the scenario's)")
     private Integer epochs;
 
-    @Option(names = "--samples", paramLabel = "N", description = "rows generated, 80% for training (default: the"
+    @Option(names = "--samples", paramLabel = "N", description = "rows generated, 80%% for training (default: the"
             + " scenario's)")
     private Integer samples;
 
@@ -100,6 +101,11 @@ public final class DemoCommand implements Callable<Integer> {
             e.println("lawful demo: --epochs must be at least 1 and --samples at least 10");
             return Lawful.EXIT_USAGE;
         }
+        String unusable = unusable(out, chosen);
+        if (unusable != null) {
+            e.println(unusable);
+            return Lawful.EXIT_USAGE;
+        }
         int status = Lawful.EXIT_OK;
         Progress progress = quiet ? Progress.quiet() : Progress.console(new PrintStream(new WriterStream(e), true));
         for (Scenario s : chosen) {
@@ -130,6 +136,39 @@ public final class DemoCommand implements Callable<Integer> {
             }
         }
         return status;
+    }
+
+    /**
+     * Checks before any training that the report folders can be made and written, so a bad {@code --out} fails in a
+     * second rather than after minutes of training: each scenario's folder is created (with its parents) and a file
+     * is created in it and deleted.
+     *
+     * @return the message for standard error, or null when every folder is writable
+     */
+    private static String unusable(Path out, List<Scenario> chosen) {
+        if (Files.exists(out) && !Files.isDirectory(out)) {
+            return "lawful demo: --out " + out + " is a file; give a folder (it is created if missing)";
+        }
+        for (Path p = out.toAbsolutePath().getParent(); p != null; p = p.getParent()) {
+            if (Files.exists(p)) {
+                if (!Files.isDirectory(p)) {
+                    return "lawful demo: cannot write the report to " + out + ": " + p + " is a file, not a folder;"
+                            + " give a writable folder with --out";
+                }
+                break;
+            }
+        }
+        for (Scenario s : chosen) {
+            Path dir = out.resolve(s.name());
+            try {
+                Files.createDirectories(dir);
+                Files.delete(Files.createTempFile(dir, ".lawful-", ".probe"));
+            } catch (IOException ex) {
+                return "lawful demo: cannot write the report to " + dir + ": " + CheckCommand.reason(ex)
+                        + "; give a writable folder with --out";
+            }
+        }
+        return null;
     }
 
     /** Bytes to a writer, for the progress bars (they draw on a stream). */

@@ -1,5 +1,7 @@
 package dev.lawful.cli;
 
+import java.io.InputStream;
+import java.io.OutputStream;
 import java.io.PrintStream;
 import java.io.PrintWriter;
 import java.io.Writer;
@@ -58,8 +60,32 @@ public final class Lawful implements Runnable {
     @Spec
     private CommandSpec spec;
 
+    private InputStream stdin = InputStream.nullInputStream();
+    private PrintStream stdout = new PrintStream(OutputStream.nullOutputStream());
+    private boolean errTerminal;
+
     /** Creates the top command; picocli calls this. */
     public Lawful() {
+    }
+
+    /** @return standard input, for {@code --in -} */
+    InputStream stdin() {
+        return stdin;
+    }
+
+    /** @return standard output as bytes, for {@code --out -} (data are written to it unescaped) */
+    PrintStream stdout() {
+        return stdout;
+    }
+
+    /** @return whether standard error is a terminal, so a progress display may be drawn on it */
+    boolean standardErrorIsTerminal() {
+        return errTerminal;
+    }
+
+    /** @return the worker threads of {@code complete} and {@code verify}: one per available processor */
+    int threads() {
+        return Pipeline.defaultThreads();
     }
 
     /** Runs when no command is given: that is a usage error. */
@@ -74,7 +100,13 @@ public final class Lawful implements Runnable {
      * @param args the arguments
      */
     public static void main(String... args) {
-        System.exit(run(System.out, System.err, args));
+        // JavaCPP's loader (under ND4J, for lawful demo) warns on standard error that Deeplearning4j 1.0.0-M2.1's own
+        // JavaCPP and OpenBLAS versions differ; through SLF4J the warning reaches the command line's logging
+        // backend, which discards it
+        if (System.getProperty("org.bytedeco.javacpp.logger") == null) {
+            System.setProperty("org.bytedeco.javacpp.logger", "slf4j");
+        }
+        System.exit(run(System.in, System.out, System.err, RowProgress.standardErrorIsTerminal(), args));
     }
 
     /**
@@ -87,9 +119,27 @@ public final class Lawful implements Runnable {
      *         {@link #EXIT_INTERNAL}
      */
     public static int run(PrintStream out, PrintStream err, String... args) {
+        return run(InputStream.nullInputStream(), out, err, false, args);
+    }
+
+    /**
+     * Runs the command line without exiting, with a standard input.
+     *
+     * @param in       standard input, read by {@code --in -}
+     * @param out      receives results, and the data of {@code --out -} (as bytes)
+     * @param err      receives diagnostics, usage errors and, when {@code terminal}, the progress display
+     * @param terminal whether {@code err} is a terminal
+     * @param args     the arguments, as on the command line
+     * @return the exit status, as {@link #run(PrintStream, PrintStream, String...)}
+     */
+    public static int run(InputStream in, PrintStream out, PrintStream err, boolean terminal, String... args) {
         PrintWriter o = writer(out);
         PrintWriter e = writer(err);
-        CommandLine cmd = new CommandLine(new Lawful());
+        Lawful top = new Lawful();
+        top.stdin = in;
+        top.stdout = out;
+        top.errTerminal = terminal;
+        CommandLine cmd = new CommandLine(top);
         cmd.setOut(o);
         cmd.setErr(e);
         cmd.setParameterExceptionHandler(Lawful::usageError);
@@ -108,7 +158,8 @@ public final class Lawful implements Runnable {
 
     /**
      * Prints a usage error: the message, for an unknown command the nearest command name when one is near (picocli's
-     * own suggestions would offer any command, and then leave out the usage), and the usage of the command.
+     * own suggestions would offer any command), and one line saying where the help is. The whole help is not
+     * printed: it would scroll the error out of sight.
      *
      * @return the exit status {@link #EXIT_USAGE}
      */
@@ -123,19 +174,21 @@ public final class Lawful implements Runnable {
                 err.println("Did you mean 'lawful " + near + "'?");
             }
         }
-        line.usage(err);
+        err.println("Run '" + line.getCommandSpec().qualifiedName() + " --help' for the options and what they do.");
         return EXIT_USAGE;
     }
 
     /**
      * A writer that hands its characters to {@code stream}, so they are encoded with the stream's charset (a
-     * {@code PrintWriter} built on the stream directly would use the platform default instead).
+     * {@code PrintWriter} built on the stream directly would use the platform default instead), with every control
+     * character escaped ({@link Printable}): messages quote law and data files, and an escape sequence in a file
+     * must not reach the terminal.
      */
     private static PrintWriter writer(PrintStream stream) {
         return new PrintWriter(new Writer() {
             @Override
             public void write(char[] buffer, int offset, int length) {
-                stream.print(String.valueOf(buffer, offset, length));
+                stream.print(Printable.escape(String.valueOf(buffer, offset, length)));
             }
 
             @Override

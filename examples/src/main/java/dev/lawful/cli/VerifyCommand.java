@@ -2,25 +2,33 @@ package dev.lawful.cli;
 
 import dev.lawful.algebra.LawSet;
 import dev.lawful.enforce.LawResiduals;
+import dev.lawful.enforce.ResidualAccumulator;
 import dev.lawful.enforce.ResidualReport;
-import dev.lawful.io.CsvTable;
 import dev.lawful.io.JsonWriter;
 import java.io.PrintWriter;
 import java.nio.file.Path;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
 import java.util.Set;
 import java.util.concurrent.Callable;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Mixin;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.ParameterException;
 import picocli.CommandLine.Parameters;
+import picocli.CommandLine.ParentCommand;
 import picocli.CommandLine.Spec;
 
 /**
- * {@code lawful verify FILE.law --in full.csv [--tol T] [--json]}: how well the rows of a CSV file obey the laws.
+ * {@code lawful verify FILE.law --in DATA [--tol T] [--json]}: how well the rows of a data file obey the laws.
  *
- * <p>The CSV header must name every input and output element of the law file ({@code name} or {@code name[i]}),
- * in any order; other columns are ignored with a note on standard error (see {@link DataFiles}). Each row is a
+ * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, or CSV on standard input; {@link DataInput}) must name every
+ * input and output element of the law file that a law or limit involves ({@code name} or {@code name[i]}), in any
+ * order; other columns are ignored with a note on standard error (see {@link DataFiles}). The rows are read and
+ * judged in chunks on every core, in constant memory; the report is merged exactly from the workers' partial ones
+ * ({@link ResidualAccumulator}), so it has the same bits however the rows were split. Each row is a
  * sample in the declared units. The report ({@link ResidualReport}) gives, for each scalar law, the largest, mean
  * and 99th-percentile residual in the law's unit and relative to the law's natural scale, the samples over the
  * tolerance, the NaN or infinite residuals and a histogram by decade; it is printed as aligned tables with a
@@ -40,7 +48,7 @@ import picocli.CommandLine.Spec;
         mixinStandardHelpOptions = true,
         version = Lawful.VERSION,
         description = {
-            "Reports how well the rows of a CSV file obey the laws of a law file: for each scalar law the largest, "
+            "Reports how well the rows of a data file (CSV, NumPy .npy or .npz) obey the laws of a law file: for each scalar law the largest, "
                     + "mean and 99th-percentile residual |lhs - rhs| in the law's unit and relative to the law's "
                     + "natural scale, the rows over the tolerance, NaN or infinite residuals, and a histogram of the "
                     + "relative residual by decade.",
@@ -62,12 +70,14 @@ public final class VerifyCommand implements Callable<Integer> {
     @Spec
     private CommandSpec spec;
 
+    @ParentCommand
+    private Lawful parent;
+
     @Parameters(index = "0", paramLabel = "FILE.law", description = "the law file (UTF-8 text)")
     private Path file;
 
-    @Option(names = "--in", required = true, paramLabel = "FULL.csv",
-            description = "the CSV file: one row per sample, a column for every input and output element")
-    private Path in;
+    @Mixin
+    private DataInput input;
 
     @Option(names = "--tol", paramLabel = "T", defaultValue = "1e-9",
             description = "largest relative residual |lhs - rhs| / scale accepted (default: ${DEFAULT-VALUE}). "
@@ -84,6 +94,17 @@ public final class VerifyCommand implements Callable<Integer> {
     public VerifyCommand() {
     }
 
+    /** What one worker thread accumulates. */
+    private static final class Work {
+        final ResidualAccumulator residuals;
+        final LimitCheck limits;
+
+        Work(LawSet laws, double tolerance) {
+            residuals = new ResidualAccumulator(laws, tolerance);
+            limits = laws.expand().limitCount() == 0 ? null : new LimitCheck(laws.expand());
+        }
+    }
+
     /**
      * Reads the files, computes the report and prints it.
      *
@@ -98,59 +119,108 @@ public final class VerifyCommand implements Callable<Integer> {
             throw new ParameterException(spec.commandLine(), "--tol must be a finite number >= 0, found "
                     + tolerance);
         }
-        LawSet laws;
-        DataFiles.Data data;
         try {
-            laws = DataFiles.readLaws("verify", file, err);
-            data = DataFiles.readColumns("verify", in, file.toString(),
-                    DataFiles.needed(laws, laws.outputNames(), "an output"), Set.of());
+            return verify(out, err);
         } catch (CommandFailure f) {
             err.println(f.getMessage());
             return f.status();
         }
-        for (String note : data.notes()) {
-            err.println(note);
+    }
+
+    private int verify(PrintWriter out, PrintWriter err) throws CommandFailure {
+        LawSet laws = DataFiles.readLaws("verify", file, err);
+        try (RowSource source = input.open("verify", parent.stdin())) {
+            DataFiles.Selection sel = DataFiles.select("verify", source, file.toString(),
+                    DataFiles.needed(laws, laws.outputNames(), "an output"), Set.of(), DataFiles.unused(laws));
+            for (String note : sel.notes()) {
+                err.println(note);
+            }
+            Streamed<Work> run = Streamed.run("verify", source, sel, parent, err, () -> new Work(laws, tolerance),
+                    (rows, x, y, w) -> {
+                        w.residuals.add(x, y, rows.count(), rows.firstRow(), rows.tags());
+                        if (w.limits != null) {
+                            w.limits.add(x, y, rows.count(), rows.firstRow(), rows.tags());
+                        }
+                    }, laws.inputWidth());
+            Work all = run.workspaces().get(0);
+            for (Work w : run.workspaces().subList(1, run.workspaces().size())) {
+                all.residuals.merge(w.residuals);
+                if (all.limits != null) {
+                    all.limits.merge(w.limits);
+                }
+            }
+            print(out, source, sel, run.rows(), all);
+            boolean inside = all.limits == null || all.limits.allInside();
+            return all.residuals.report().withinTolerance() && inside ? Lawful.EXIT_OK : Lawful.EXIT_INVALID;
+        } catch (java.io.IOException e) {
+            throw new CommandFailure(Lawful.EXIT_USAGE, "lawful verify: cannot read " + input.in + ": "
+                    + CheckCommand.reason(e));
         }
-        CsvTable table = data.table();
-        int rows = table.rows();
-        double[] x = table.gather(laws.inputNames());
-        double[] y = table.gather(laws.outputNames());
-        ResidualReport report = ResidualReport.of(laws, x, y, rows, tolerance);
-        LimitCheck limits = laws.expand().limitCount() == 0 ? null : LimitCheck.of(laws.expand(), x, y, table);
+    }
+
+    private void print(PrintWriter out, RowSource source, DataFiles.Selection sel, long rows, Work all) {
+        ResidualReport report = all.residuals.report();
+        Map<Integer, Long> tagOf = new HashMap<>();
+        for (int i = 0; i < report.laws().size(); i++) {
+            tagOf.put(report.laws().get(i).worstSample(), all.residuals.worstTag(i));
+        }
+        String place = source instanceof CsvSource ? "line" : "row";
         if (json) {
             JsonWriter w = JsonWriter.pretty(out);
-            w.beginObject().name("file").value(file.toString()).name("data").value(in.toString());
+            w.beginObject().name("file").value(file.toString()).name("data").value(source.name());
             w.name("ignoredColumns").beginArray();
-            for (String c : data.extra()) {
+            for (String c : sel.extra()) {
+                w.value(c);
+            }
+            w.endArray();
+            w.name("absentColumns").beginArray();
+            for (String c : sel.absent()) {
                 w.value(c);
             }
             w.endArray();
             report.writeJson(w.name("report"));
             w.name("worst").beginArray();
             for (LawResiduals l : report.laws()) {
-                w.beginObject().name("law").value(l.name()).name("line");
+                w.beginObject().name("law").value(l.name()).name(place);
                 if (l.worstSample() < 0) {
                     w.nullValue();
                 } else {
-                    w.value(table.line(l.worstSample()));
+                    w.value(tagOf.get(l.worstSample()));
                 }
                 w.endObject();
             }
             w.endArray();
-            if (limits != null) {
-                limits.writeJson(w.name("limits"));
+            if (all.limits != null) {
+                all.limits.writeJson(w.name("limits"), place);
             }
             w.endObject();
             out.println();
         } else {
-            out.println(file + ": " + rows + (rows == 1 ? " row" : " rows") + " of " + in);
+            out.println(file + ": " + rows + (rows == 1 ? " row" : " rows") + " of " + source.name());
             out.println();
-            out.print(report.toTable(k -> "line " + table.line(k)));
-            if (limits != null) {
-                limits.print(out, rows);
+            out.print(report.toTable(k -> source.place(tagOf.get(k))));
+            coverage(out, report);
+            if (all.limits != null) {
+                all.limits.print(out, rows, source);
             }
         }
-        boolean inside = limits == null || limits.allInside();
-        return report.withinTolerance() && inside ? Lawful.EXIT_OK : Lawful.EXIT_INVALID;
+    }
+
+    /**
+     * When some residual is NaN or infinite, says how many rows max, mean and p99 cover (the rows whose residual is
+     * finite), so that a 0 over a handful of finite rows is not read as a statement about all of them.
+     */
+    private static void coverage(PrintWriter out, ResidualReport report) {
+        List<LawResiduals> partial = report.laws().stream().filter(l -> l.nonFinite() > 0).toList();
+        if (partial.isEmpty()) {
+            return;
+        }
+        StringBuilder sb = new StringBuilder("max, mean and p99 cover only the rows with a finite residual:");
+        for (LawResiduals l : partial) {
+            sb.append(' ').append(l.name()).append(' ').append(l.finite()).append(" of ").append(l.samples())
+                    .append(" rows,");
+        }
+        sb.setLength(sb.length() - 1);
+        out.println(sb);
     }
 }

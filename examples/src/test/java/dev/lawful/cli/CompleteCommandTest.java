@@ -144,9 +144,9 @@ class CompleteCommandTest {
         Captured r = run("complete", reformer(), "--in", data.toString(), "--out", full.toString());
         assertEquals(1, r.code());
         assertEquals("", r.out());
-        assertEquals("lawful complete: " + data + ": line 4: cannot complete this row: an input or free output is"
-                + " NaN or infinite; nothing was written (--keep-going writes such rows as NaN with a status column)\n",
-                r.err());
+        assertEquals("lawful complete: " + data + ": line 4: cannot complete this row: column 'out[0]': 'NaN' is read"
+                + " as NaN (not a number); nothing was written (--keep-going writes such rows as NaN with a status"
+                + " column)\n", r.err());
         assertEquals("an older file that must survive\n", Files.readString(full));
         try (var files = Files.list(temp)) {
             assertEquals(2, files.count(), "no temporary file is left behind");
@@ -160,7 +160,8 @@ class CompleteCommandTest {
         Path full = temp.resolve("full.csv");
         Captured r = run("complete", reformer(), "--in", data.toString(), "--out", full.toString(), "--keep-going");
         assertEquals(0, r.code(), r.err());
-        assertEquals("lawful complete: note: 1 of 2 rows could not be completed; their outputs are NaN and the"
+        assertEquals("lawful complete: note: " + data + ": line 2, column 'out[0]': 'Infinity' is read as infinity\n"
+                + "lawful complete: note: 1 of 2 rows could not be completed; their outputs are NaN and the"
                 + " status column says why: line 2 (non-finite input)\n", r.err());
         assertTrue(r.out().contains("wrote " + full + ": 2 rows of " + data + ", with a status column\n"), r.out());
         CsvReader back = CsvReader.open(full);
@@ -225,6 +226,39 @@ class CompleteCommandTest {
     }
 
     @Test
+    void aColumnWithoutBracketsOrUnderAnotherNameGetsADidYouMean() throws IOException {
+        // out3 is out[3] without its brackets; nitrogen_in is the only unknown column and feed[5] the only missing
+        // element
+        Path data = write("in.csv", REFORMER_HEADER.replace("out[3]", "out3").replace("feed[5]", "nitrogen_in")
+                + "\n1,3,0,0.05,0.02,0.01,900,0.4,0.35\n");
+        Captured r = run("complete", reformer(), "--in", data.toString(), "--out", temp.resolve("o.csv").toString());
+        assertEquals(2, r.code());
+        assertEquals("lawful complete: " + data + ": line 1, column 'out3': not an element of " + reformer()
+                + "; did you mean 'out[3]' (a free output)?\n"
+                + "lawful complete: " + data + ": line 1, column 'nitrogen_in': not an element of " + reformer()
+                + "; did you mean 'feed[5]' (an input, the only one missing)?\n", r.err());
+    }
+
+    @Test
+    void anInputNoLawUsesMayBeAbsentAndIsNamedInANote() throws IOException {
+        // the reformer's laws are element balances: T (temperature) is an input of the network, not of any law
+        Path data = write("in.csv", REFORMER_HEADER.replace(",T,", ",temperature,")
+                + "\n1,3,0,0.05,0.02,0.01,900,0.4,0.35\n");
+        Path full = temp.resolve("o.csv");
+        Captured r = run("complete", reformer(), "--in", data.toString(), "--out", full.toString());
+        assertEquals(0, r.code(), r.err());
+        assertEquals("lawful complete: note: " + data + ": ignoring column not in " + reformer() + ": temperature\n"
+                + "lawful complete: note: " + data + ": no column T, not needed: no law or limit of " + reformer()
+                + " involves it (if the file has it under another name, rename 'temperature' as 'T')\n", r.err());
+        CsvTable t = CsvTable.read(full);
+        assertEquals(-1, t.column("T"), "an absent input is not invented in the output");
+        // carbon: out[2] = feed[0] + feed[2] + feed[3] - out[0] - out[3] = 1 + 0 + 0.05 - 0.4 - 0.35
+        assertEquals(0.3, t.get(0, t.column("out[2]")), 1e-15);
+        Captured v = run("verify", reformer(), "--in", full.toString());
+        assertEquals(0, v.code(), v.err());
+    }
+
+    @Test
     void unwritableOutputIsAUsageError() throws IOException {
         Path data = write("in.csv", REFORMER_HEADER + "\n1,3,0,0.05,0.02,0.01,900,0.4,0.35\n");
         Path nowhere = temp.resolve("no-such-dir").resolve("o.csv");
@@ -252,7 +286,7 @@ class CompleteCommandTest {
     void usageErrorsAndHelp() {
         Captured none = run("complete", reformer(), "--in", "x.csv");
         assertEquals(2, none.code());
-        assertTrue(none.err().startsWith("Missing required option: '--out=OUT.csv'\n"), none.err());
+        assertTrue(none.err().startsWith("Missing required option: '--out=OUT'\n"), none.err());
         Captured missing = run("complete", reformer(), "--in", temp.resolve("no.csv").toString(), "--out",
                 temp.resolve("o.csv").toString());
         assertEquals(2, missing.code());
@@ -260,8 +294,8 @@ class CompleteCommandTest {
         Captured help = run("complete", "--help");
         assertEquals(0, help.code());
         String text = LawfulTest.words(help.out());
-        assertTrue(help.out().startsWith("Usage: lawful complete [-hV] [--keep-going] --in=IN.csv --out=OUT.csv"
-                + " FILE.law\n"), help.out());
+        assertTrue(help.out().startsWith("Usage: lawful complete [-hV] [--keep-going] [--format=FORMAT] --in=DATA\n"
+                + "                       --out=OUT [--columns=NAMES[,NAMES...]]... FILE.law\n"), help.out());
         assertTrue(text.contains("Caution: Exact laws do not make a surrogate valid: validate it against trusted"
                 + " models and the applicable codes before it informs real decisions."), text);
         assertEquals(help.out(), run("help", "complete").out());

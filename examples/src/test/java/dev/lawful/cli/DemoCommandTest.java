@@ -3,6 +3,9 @@ package dev.lawful.cli;
 import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import java.io.ByteArrayOutputStream;
+import java.io.PrintStream;
+import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import org.junit.jupiter.api.Test;
@@ -44,5 +47,39 @@ class DemoCommandTest {
         r = LawfulTest.run("demo", "column", "--epochs", "0");
         assertEquals(Lawful.EXIT_USAGE, r.code());
         assertEquals("lawful demo: --epochs must be at least 1 and --samples at least 10\n", r.err());
+    }
+
+    @Test
+    void aBadOutFolderFailsBeforeAnyTraining(@TempDir Path dir) throws Exception {
+        Path file = Files.writeString(dir.resolve("report.txt"), "x");
+        LawfulTest.Captured r = LawfulTest.run("demo", "reformer", "--quiet", "--out", file.toString());
+        assertEquals(Lawful.EXIT_USAGE, r.code());
+        assertEquals("lawful demo: --out " + file + " is a file; give a folder (it is created if missing)\n",
+                r.err());
+        assertEquals("", r.out(), "nothing was trained: no table, no caution header");
+        Path under = dir.resolve("report.txt").resolve("sub");
+        r = LawfulTest.run("demo", "column", "--quiet", "--out", under.toString());
+        assertEquals(Lawful.EXIT_USAGE, r.code());
+        assertEquals("lawful demo: cannot write the report to " + under + ": " + file
+                + " is a file, not a folder; give a writable folder with --out\n", r.err());
+        assertEquals("", r.out());
+    }
+
+    @Test
+    void helpPrintsNoFormattingWarnings() {
+        // picocli reports a format error (such as a lone '%') on the JVM's standard error, not on the command's
+        PrintStream realErr = System.err;
+        ByteArrayOutputStream leaked = new ByteArrayOutputStream();
+        LawfulTest.Captured r;
+        try {
+            System.setErr(new PrintStream(leaked, true, StandardCharsets.UTF_8));
+            r = LawfulTest.run("demo", "--help");
+        } finally {
+            System.setErr(realErr);
+        }
+        assertEquals(0, r.code());
+        assertEquals("", leaked.toString(StandardCharsets.UTF_8));
+        assertEquals("", r.err());
+        assertTrue(LawfulTest.words(r.out()).contains("rows generated, 80% for training"), r.out());
     }
 }

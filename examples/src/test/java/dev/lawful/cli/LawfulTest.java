@@ -84,8 +84,8 @@ class LawfulTest {
         Captured r = run();
         assertEquals(2, r.code());
         assertEquals("", r.out());
-        assertTrue(r.err().startsWith("Missing required command (try 'lawful check FILE.law')\nUsage: lawful"),
-                r.err());
+        assertEquals("Missing required command (try 'lawful check FILE.law')\nRun 'lawful --help' for the options"
+                + " and what they do.\n", r.err());
     }
 
     @Test
@@ -99,13 +99,40 @@ class LawfulTest {
         assertEquals(2, command.code());
         assertEquals("", command.out());
         assertTrue(command.err().contains("frobnicate"), command.err());
-        assertTrue(command.err().contains("Usage: lawful"), command.err());
+        assertTrue(command.err().endsWith("\nRun 'lawful --help' for the options and what they do.\n"),
+                command.err());
+        assertTrue(!command.err().contains("Usage:"), "no whole help after a usage error: " + command.err());
         assertTrue(!command.err().contains("Did you mean"), "nothing is near 'frobnicate': " + command.err());
 
         Captured near = run("verfy", "a.law");
         assertEquals(2, near.code());
         assertTrue(near.err().startsWith("Unmatched arguments from index 0: 'verfy', 'a.law'\nDid you mean 'lawful"
-                + " verify'?\nUsage: lawful"), near.err());
+                + " verify'?\nRun 'lawful --help' for the options and what they do.\n"), near.err());
+    }
+
+    @Test
+    void controlCharactersFromAFileAreShownEscapedNotSentToTheTerminal(@org.junit.jupiter.api.io.TempDir
+                                                                        java.nio.file.Path temp) throws Exception {
+        // ESC [ 2 J clears an ANSI terminal (Source: ECMA-48, 5th edition, control functions ED and CSI); U+202E
+        // reverses the text shown after it (Source: Unicode Standard Annex #9, explicit directional overrides)
+        java.nio.file.Path law = java.nio.file.Files.writeString(temp.resolve("evil.law"),
+                "output y\nlaw a: y = \u001b[2J\u202Ez\n", StandardCharsets.UTF_8);
+        Captured r = run("check", law.toString());
+        assertEquals(1, r.code());
+        assertTrue(r.err().contains("\\u001B[2J\\u202Ez"), r.err());
+        for (char c : r.err().toCharArray()) {
+            assertTrue(c >= 0x20 && c != 0x7f && c != 0x202e || c == '\n', "raw control character "
+                    + Integer.toHexString(c) + " in: " + r.err());
+        }
+    }
+
+    @Test
+    void printableKeepsLineStructureAndEscapesEveryOtherControl() {
+        // C0 controls are U+0000..U+001F, DEL U+007F, C1 U+0080..U+009F (Source: ISO/IEC 6429 / ECMA-48 code
+        // table); U+200B is category Cf (Source: Unicode Character Database, UnicodeData.txt)
+        assertEquals("a\tb\r\nc", Printable.escape("a\tb\r\nc"));
+        assertEquals("\\u0007\\u0008\\u007F\\u009B\\u200B", Printable.escape("\u0007\b\u007f\u009b\u200b"));
+        assertEquals("température 1e-3 µ", Printable.escape("température 1e-3 µ"));
     }
 
     @Test

@@ -135,7 +135,7 @@ class VerifyCommandTest {
         Captured json = run("verify", reformer(), "--in", data.toString(), "--json");
         assertEquals(1, json.code());
         Map<String, Object> doc = object(CheckCommandTest.Json.parse(json.out()));
-        assertEquals(List.of("file", "data", "ignoredColumns", "report", "worst"), List.copyOf(doc.keySet()));
+        assertEquals(List.of("file", "data", "ignoredColumns", "absentColumns", "report", "worst"), List.copyOf(doc.keySet()));
         assertEquals(reformer(), doc.get("file"));
         assertEquals(data.toString(), doc.get("data"));
         Map<String, Object> report = object(doc.get("report"));
@@ -188,9 +188,10 @@ class VerifyCommandTest {
 
     @Test
     void misnamedAndMissingColumnsAreNamedWithTheNearestElement() throws IOException {
-        assertCsvProblem(HEADER.replace("out[2]", "ot[2]").replace(",T,", ",Temp,") + "\n" + ROW1 + "\n",
+        assertCsvProblem(HEADER.replace("out[2]", "ot[2]").replace("feed[0]", "Temp") + "\n" + ROW1 + "\n",
                 "lawful verify: @CSV@: line 1, column 'ot[2]': not an element of @LAW@; did you mean 'out[2]' (an"
-                        + " output)?\nlawful verify: @CSV@: line 1: no column 'T' (an input of @LAW@)");
+                        + " output)?\nlawful verify: @CSV@: line 1, column 'Temp': not an element of @LAW@; did you mean"
+                        + " 'feed[0]' (an input, the only one missing)?");
         assertCsvProblem("# header next\n" + HEADER.replace(",out[5]", "") + "\n" + ROW1.substring(0,
                 ROW1.lastIndexOf(',')) + "\n", "lawful verify: @CSV@: line 2: no column 'out[5]' (an output of @LAW@)");
         assertCsvProblem(HEADER.replace("feed[4]", "FEED[4]") + "\n" + ROW1 + "\n",
@@ -279,7 +280,7 @@ class VerifyCommandTest {
             assertEquals(2, r.code(), bad);
             assertEquals("", r.out());
             assertTrue(r.err().startsWith("--tol must be a finite number >= 0, found " + Double.parseDouble(bad)
-                    + "\nUsage: lawful verify"), r.err());
+                    + "\nRun 'lawful verify --help' for the options and what they do.\n"), r.err());
         }
         Captured text = run("verify", reformer(), "--in", data.toString(), "--tol", "abc");
         assertEquals(2, text.code());
@@ -292,8 +293,8 @@ class VerifyCommandTest {
     void helpJustifiesTheDefaultToleranceAndCarriesTheCaution() {
         Captured r = run("verify", "--help");
         assertEquals(0, r.code());
-        assertTrue(r.out().startsWith("Usage: lawful verify [-hV] [--json] --in=FULL.csv [--tol=T] FILE.law\n"),
-                r.out());
+        assertTrue(r.out().startsWith("Usage: lawful verify [-hV] [--json] [--format=FORMAT] --in=DATA [--tol=T]\n"
+                + "                     [--columns=NAMES[,NAMES...]]... FILE.law\n"), r.out());
         String text = LawfulTest.words(r.out());
         assertTrue(text.contains("(default: 1e-9). Laws completed in double hold to a few 1e-16 of their scale"),
                 text);
@@ -304,6 +305,6 @@ class VerifyCommandTest {
                 + " models and the applicable codes before it informs real decisions."), text);
         Captured none = run("verify", reformer());
         assertEquals(2, none.code());
-        assertTrue(none.err().startsWith("Missing required option: '--in=FULL.csv'\n"), none.err());
+        assertTrue(none.err().startsWith("Missing required option: '--in=DATA'\n"), none.err());
     }
 }

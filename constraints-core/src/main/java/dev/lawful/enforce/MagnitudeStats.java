@@ -1,0 +1,45 @@
+package dev.lawful.enforce;
+
+/**
+ * The running summaries of one law's residual magnitudes (absolute or relative) behind a {@link ResidualStats}: the
+ * largest, an {@link ExactSum} for the mean and a {@link PercentileSketch} for the 99th percentile. Every piece
+ * merges exactly, so the summaries of a whole do not depend on how it was split or in which order the parts were
+ * merged. Not thread-safe.
+ */
+final class MagnitudeStats {
+    private final ExactSum sum = new ExactSum();
+    private final PercentileSketch sketch = new PercentileSketch();
+    private double max;
+
+    /** @param v a magnitude ≥ 0 or positive infinity */
+    void add(double v) {
+        if (sketch.count() == 0 || v > max) {
+            max = v;
+        }
+        sum.add(v);
+        sketch.add(v);
+    }
+
+    void merge(MagnitudeStats other) {
+        if (other.sketch.count() == 0) {
+            return;
+        }
+        if (sketch.count() == 0 || other.max > max) {
+            max = other.max;
+        }
+        sum.merge(other.sum);
+        sketch.merge(other.sketch);
+    }
+
+    /** @return whether the percentile is exact (see {@link PercentileSketch#isExact()}) */
+    boolean exact() {
+        return sketch.isExact();
+    }
+
+    /** @return the summaries, {@link ResidualStats#NONE} when nothing was added */
+    ResidualStats stats() {
+        long n = sketch.count();
+        return n == 0 ? ResidualStats.NONE
+                : new ResidualStats(max, sum.mean(n), sketch.percentile(ResidualReport.PERCENT));
+    }
+}

@@ -1,0 +1,155 @@
+package dev.lawful.enforce;
+
+import java.util.Arrays;
+
+/**
+ * A mergeable, deterministic percentile of non-negative doubles in bounded memory: exact (the nearest-rank value,
+ * {@link NearestRank}) while it holds at most {@value #EXACT_LIMIT} values, and beyond that the nearest-rank value
+ * located in log-spaced buckets, with a documented bound on its relative error.
+ *
+ * <p><b>Buckets.</b> A non-negative double's bit pattern orders like its value; its top {@value #SUB_BITS} mantissa
+ * bits with its exponent name its bucket, so each binade [2<sup>e</sup>, 2<sup>e+1</sup>) is cut into
+ * 2<sup>{@value #SUB_BITS}</sup> buckets of equal width 2<sup>e-{@value #SUB_BITS}</sup>. A bucket keeps how many
+ * values fell in it and the largest of them. The percentile of rank k = ⌈p·n/100⌉ is the largest value of the
+ * bucket that holds the k-th smallest value v<sub>k</sub>: a value some sample really has, never below v<sub>k</sub>
+ * (so at least p % of the values are at or below it), and above it by less than 2<sup>-{@value #SUB_BITS}</sup>
+ * of v<sub>k</sub> (about 0.1 %; for subnormal values, below 2.2e-308, by less than 2<sup>-1064</sup>). Buckets
+ * are allocated one binade at a time as values arrive, so memory grows with the range of the values, never with
+ * their number.
+ *
+ * <p><b>Merging.</b> Counts add and maxima combine, and the exact values are kept exactly when both sides hold
+ * them and their total stays within {@value #EXACT_LIMIT}: the result depends only on the multiset of values,
+ * never on the order of additions or merges, so partial sketches of any partition give the bits of one sketch of
+ * the whole. Not thread-safe.
+ */
+public final class PercentileSketch {
+    /** Values kept exactly; beyond this count, the percentile comes from the buckets. */
+    public static final int EXACT_LIMIT = 8192;
+    /** Mantissa bits that name a bucket within a binade. */
+    public static final int SUB_BITS = 10;
+    /** The bound on the relative error of a percentile from the buckets: 2<sup>-{@value #SUB_BITS}</sup>. */
+    public static final double RELATIVE_ERROR = 0x1p-10;
+    private static final int BINADES = 2048;
+    private static final int PER_BINADE = 1 << SUB_BITS;
+
+    private final long[][] counts = new long[BINADES][];
+    private final double[][] largest = new double[BINADES][];
+    private long n;
+    /** The values themselves while {@code n <= EXACT_LIMIT}; null once more have been seen. */
+    private double[] exact = new double[16];
+
+    /** Creates an empty sketch. */
+    public PercentileSketch() {
+    }
+
+    /**
+     * Adds one value.
+     *
+     * @param v a value ≥ 0 or positive infinity
+     * @throws IllegalArgumentException when {@code v} is negative or NaN
+     */
+    public void add(double v) {
+        if (!(v >= 0)) {
+            throw new IllegalArgumentException("PercentileSketch adds values >= 0, found " + v);
+        }
+        long key = Double.doubleToRawLongBits(v) >>> (52 - SUB_BITS);
+        int binade = (int) (key >>> SUB_BITS);
+        int sub = (int) (key & (PER_BINADE - 1));
+        if (counts[binade] == null) {
+            counts[binade] = new long[PER_BINADE];
+            largest[binade] = new double[PER_BINADE];
+        }
+        counts[binade][sub]++;
+        if (v > largest[binade][sub]) {
+            largest[binade][sub] = v;
+        }
+        keep(v);
+        n++;
+    }
+
+    private void keep(double v) {
+        if (exact == null) {
+            return;
+        }
+        if (n >= EXACT_LIMIT) {
+            exact = null;
+            return;
+        }
+        if (n == exact.length) {
+            exact = Arrays.copyOf(exact, Math.min(EXACT_LIMIT, 2 * exact.length));
+        }
+        exact[(int) n] = v;
+    }
+
+    /**
+     * Adds another sketch's values to this one (the other is not modified).
+     *
+     * @param other a sketch
+     */
+    public void merge(PercentileSketch other) {
+        for (int b = 0; b < BINADES; b++) {
+            long[] theirs = other.counts[b];
+            if (theirs == null) {
+                continue;
+            }
+            if (counts[b] == null) {
+                counts[b] = new long[PER_BINADE];
+                largest[b] = new double[PER_BINADE];
+            }
+            for (int s = 0; s < PER_BINADE; s++) {
+                counts[b][s] += theirs[s];
+                largest[b][s] = Math.max(largest[b][s], other.largest[b][s]);
+            }
+        }
+        if (exact != null && other.exact != null && n + other.n <= EXACT_LIMIT) {
+            double[] both = Arrays.copyOf(exact, (int) (n + other.n));
+            System.arraycopy(other.exact, 0, both, (int) n, (int) other.n);
+            exact = both;
+        } else {
+            exact = null;
+        }
+        n += other.n;
+    }
+
+    /** @return the number of values added */
+    public long count() {
+        return n;
+    }
+
+    /** @return whether {@link #percentile} is exact: at most {@value #EXACT_LIMIT} values were added */
+    public boolean isExact() {
+        return exact != null;
+    }
+
+    /**
+     * @param percent p, from 0 to 100
+     * @return the nearest-rank p-th percentile: exact while {@link #isExact()}, otherwise the largest value of the
+     *         bucket holding it (see the class comment); NaN when no value was added
+     * @throws IllegalArgumentException when {@code percent} is not in [0, 100]
+     */
+    public double percentile(double percent) {
+        if (n == 0) {
+            NearestRank.rank(1, percent);
+            return Double.NaN;
+        }
+        long rank = NearestRank.rank(n, percent);
+        if (exact != null) {
+            double[] sorted = Arrays.copyOf(exact, (int) n);
+            Arrays.sort(sorted);
+            return sorted[(int) rank - 1];
+        }
+        long seen = 0;
+        for (int b = 0; b < BINADES; b++) {
+            if (counts[b] == null) {
+                continue;
+            }
+            for (int s = 0; s < PER_BINADE; s++) {
+                seen += counts[b][s];
+                if (seen >= rank) {
+                    return largest[b][s];
+                }
+            }
+        }
+        throw new IllegalStateException("the buckets hold fewer values than were added");
+    }
+}

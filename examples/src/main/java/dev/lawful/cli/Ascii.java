@@ -1,0 +1,88 @@
+package dev.lawful.cli;
+
+import java.util.Arrays;
+
+/**
+ * A growable byte buffer for formatting rows on a worker: ASCII text (without a {@code StringBuilder} and the two
+ * copies its text costs on the way to bytes) or little-endian float64 values. Characters beyond Latin-1 are refused (numbers and status words
+ * are ASCII; a header goes through {@link dev.lawful.io.CsvWriter}).
+ */
+final class Ascii {
+    private byte[] bytes;
+    private int length;
+
+    /** @param capacity the initial capacity in bytes */
+    Ascii(int capacity) {
+        bytes = new byte[Math.max(16, capacity)];
+    }
+
+    private void room(int more) {
+        if (length + more > bytes.length) {
+            bytes = Arrays.copyOf(bytes, Math.max(length + more, 2 * bytes.length));
+        }
+    }
+
+    /** @return this buffer, with {@code c} appended */
+    Ascii append(char c) {
+        room(1);
+        bytes[length++] = (byte) c;
+        return this;
+    }
+
+    /** @return this buffer, with {@code count} characters of {@code chars} from {@code from} appended */
+    Ascii append(char[] chars, int from, int count) {
+        room(count);
+        for (int i = 0; i < count; i++) {
+            bytes[length++] = (byte) chars[from + i];
+        }
+        return this;
+    }
+
+    /** @return this buffer, with {@code s} appended (each character below 256) */
+    Ascii append(String s) {
+        room(s.length());
+        for (int i = 0; i < s.length(); i++) {
+            char c = s.charAt(i);
+            if (c > 0xFF) {
+                throw new IllegalArgumentException("not Latin-1: " + s);
+            }
+            bytes[length++] = (byte) c;
+        }
+        return this;
+    }
+
+    /** @return this buffer, with the decimal digits of {@code v} appended */
+    Ascii append(int v) {
+        return append(Integer.toString(v));
+    }
+
+    /**
+     * Writes the bytes written so far.
+     *
+     * @param out receives them
+     * @throws java.io.IOException when {@code out} fails
+     */
+    void writeTo(java.io.OutputStream out) throws java.io.IOException {
+        out.write(bytes, 0, length);
+    }
+
+    /** Empties the buffer, keeping its capacity. */
+    void clear() {
+        length = 0;
+    }
+
+    /** @return this buffer, with the 8 bytes of {@code v} appended in little-endian order (a .npy float64) */
+    Ascii appendLittleEndian(double v) {
+        room(8);
+        long bits = Double.doubleToRawLongBits(v);
+        for (int i = 0; i < 8; i++) {
+            bytes[length++] = (byte) (bits >>> (8 * i));
+        }
+        return this;
+    }
+
+    @Override
+    public String toString() {
+        return new String(bytes, 0, length, java.nio.charset.StandardCharsets.ISO_8859_1);
+    }
+}
