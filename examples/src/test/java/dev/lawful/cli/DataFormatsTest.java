@@ -238,12 +238,13 @@ class DataFormatsTest {
         // Format Specification; one dataset per law vector or element, as a NetCDF-4 file has one variable each
         Path h5 = temp.resolve("in.h5");
         double[][] feed = new double[ROWS.length][6];
-        double[] t = new double[ROWS.length];
+        // T as integers: read through jhdf's own slices; the float datasets are read straight from the file
+        int[] t = new int[ROWS.length];
         double[] ch4 = new double[ROWS.length];
         double[] co2 = new double[ROWS.length];
         for (int r = 0; r < ROWS.length; r++) {
             System.arraycopy(ROWS[r], 0, feed[r], 0, 6);
-            t[r] = ROWS[r][6];
+            t[r] = (int) ROWS[r][6];
             ch4[r] = ROWS[r][7];
             co2[r] = ROWS[r][8];
         }
@@ -262,6 +263,9 @@ class DataFormatsTest {
             double[] expected = completed(ROWS[r]);
             for (int k = 0; k < 6; k++) {
                 assertEquals(expected[k], back.getDouble(r, 7 + k), 1e-12, "row " + r + " out[" + k + "]");
+            }
+            for (int k = 0; k < 7; k++) {
+                assertEquals(ROWS[r][k], back.getDouble(r, k), 0.0, "row " + r + ": inputs as read, column " + k);
             }
         }
         Captured v = LawfulTest.run("verify", reformer(), "--in", out.toString(), "--columns",
