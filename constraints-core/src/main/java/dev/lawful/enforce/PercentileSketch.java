@@ -32,8 +32,11 @@ public final class PercentileSketch {
     private static final int BINADES = 2048;
     private static final int PER_BINADE = 1 << SUB_BITS;
 
-    private final long[][] counts = new long[BINADES][];
-    private final double[][] largest = new double[BINADES][];
+    /**
+     * Per binade, the buckets interleaved: slot 2s holds bucket s's count and slot 2s + 1 the raw bits of its largest
+     * value (for values ≥ 0 the bits order like the values), so adding a value touches one cache line, not two.
+     */
+    private final long[][] buckets = new long[BINADES][];
     private long n;
     /** The values themselves while {@code n <= EXACT_LIMIT}; null once more have been seen. */
     private double[] exact = new double[16];
@@ -55,13 +58,15 @@ public final class PercentileSketch {
         long key = Double.doubleToRawLongBits(v) >>> (52 - SUB_BITS);
         int binade = (int) (key >>> SUB_BITS);
         int sub = (int) (key & (PER_BINADE - 1));
-        if (counts[binade] == null) {
-            counts[binade] = new long[PER_BINADE];
-            largest[binade] = new double[PER_BINADE];
+        long[] b = buckets[binade];
+        if (b == null) {
+            b = new long[2 * PER_BINADE];
+            buckets[binade] = b;
         }
-        counts[binade][sub]++;
-        if (v > largest[binade][sub]) {
-            largest[binade][sub] = v;
+        b[2 * sub]++;
+        long bits = Double.doubleToRawLongBits(v);
+        if (bits > b[2 * sub + 1]) {
+            b[2 * sub + 1] = bits;
         }
         keep(v);
         n++;
@@ -88,17 +93,17 @@ public final class PercentileSketch {
      */
     public void merge(PercentileSketch other) {
         for (int b = 0; b < BINADES; b++) {
-            long[] theirs = other.counts[b];
+            long[] theirs = other.buckets[b];
             if (theirs == null) {
                 continue;
             }
-            if (counts[b] == null) {
-                counts[b] = new long[PER_BINADE];
-                largest[b] = new double[PER_BINADE];
+            if (buckets[b] == null) {
+                buckets[b] = new long[2 * PER_BINADE];
             }
+            long[] mine = buckets[b];
             for (int s = 0; s < PER_BINADE; s++) {
-                counts[b][s] += theirs[s];
-                largest[b][s] = Math.max(largest[b][s], other.largest[b][s]);
+                mine[2 * s] += theirs[2 * s];
+                mine[2 * s + 1] = Math.max(mine[2 * s + 1], theirs[2 * s + 1]);
             }
         }
         if (exact != null && other.exact != null && n + other.n <= EXACT_LIMIT) {
@@ -140,13 +145,14 @@ public final class PercentileSketch {
         }
         long seen = 0;
         for (int b = 0; b < BINADES; b++) {
-            if (counts[b] == null) {
+            long[] mine = buckets[b];
+            if (mine == null) {
                 continue;
             }
             for (int s = 0; s < PER_BINADE; s++) {
-                seen += counts[b][s];
+                seen += mine[2 * s];
                 if (seen >= rank) {
-                    return largest[b][s];
+                    return Double.longBitsToDouble(mine[2 * s + 1]);
                 }
             }
         }
