@@ -1,0 +1,130 @@
+package dev.lawful.spark;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import dev.lawful.algebra.LawException;
+import dev.lawful.enforce.ResidualReport;
+import java.util.ArrayList;
+import java.util.List;
+import org.apache.spark.api.java.JavaRDD;
+import org.apache.spark.api.java.JavaSparkContext;
+import org.junit.jupiter.api.AfterAll;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.TestInstance;
+import org.nd4j.linalg.api.buffer.DataType;
+import org.nd4j.linalg.dataset.DataSet;
+import org.nd4j.linalg.factory.Nd4j;
+
+/**
+ * The distributed law check on {@code local[2]}. The reference throughout is the single-machine report,
+ * {@code ResidualReport.of} over the same rows in the RDD's order (what {@code lawful verify} prints): the
+ * distributed report must have the same JSON and table, character for character, however the rows are partitioned.
+ */
+@TestInstance(TestInstance.Lifecycle.PER_CLASS)
+class DistributedVerifyTest {
+    private JavaSparkContext sc;
+
+    @BeforeAll
+    void start() {
+        sc = LawfulSpark.context(SparkTests.conf("local[2]", "DistributedVerifyTest"));
+    }
+
+    @AfterAll
+    void stop() {
+        if (sc != null) {
+            sc.stop();
+        }
+    }
+
+    @Test
+    void theReportEqualsTheSingleMachineReportInOneThreeAndSevenPartitions() {
+        List<double[]> rows = VerifyRows.rows(1, 2000);
+        ResidualReport single = single(rows, 1e-9);
+        assertTrue(single.exactPercentile());
+        assertTrue(single.law("water").notANumber() > 0 && single.law("water").infinite() > 0,
+                "the data have NaN and infinite residuals");
+        assertTrue(single.failingSamples() > 0, "the data have rows over the tolerance");
+        for (int[] sizes : new int[][] {{2000}, {700, 0, 1300}, {1, 400, 0, 999, 300, 0, 300}}) {
+            JavaRDD<double[]> rdd = VerifyRows.rdd(sc, rows, sizes);
+            assertEquals(sizes.length, rdd.getNumPartitions());
+            assertSame(single, LawfulSpark.verify(VerifyRows.RESERVOIR, rdd, 1e-9), sizes.length + " partitions");
+        }
+    }
+
+    @Test
+    void beyondTheExactPercentileTheReportStillEqualsTheSingleMachineReport() {
+        List<double[]> rows = VerifyRows.rows(2, 20_000);
+        ResidualReport single = single(rows, 1e-7);
+        assertFalse(single.exactPercentile(), "more finite residuals than the sketch keeps exactly");
+        JavaRDD<double[]> rdd = VerifyRows.rdd(sc, rows, 5000, 0, 7000, 8000);
+        assertSame(single, LawfulSpark.verify(VerifyRows.RESERVOIR, rdd, 1e-7), "4 partitions");
+    }
+
+    @Test
+    void anEmptyRddGivesTheReportOfNoRows() {
+        JavaRDD<double[]> rdd = VerifyRows.rdd(sc, List.of(), 0, 0, 0);
+        assertSame(single(List.of(), 1e-9), LawfulSpark.verify(VerifyRows.RESERVOIR, rdd, 1e-9), "no rows");
+    }
+
+    @Test
+    void dataSetsOfFeaturesAndLabelsGiveTheSameReport() {
+        List<double[]> rows = VerifyRows.rows(3, 1500);
+        List<DataSet> sets = new ArrayList<>();
+        for (int at = 0; at < rows.size(); at += 128) {
+            List<double[]> part = rows.subList(at, Math.min(rows.size(), at + 128));
+            sets.add(new DataSet(Nd4j.create(VerifyRows.inputs(part), part.size(), 2),
+                    Nd4j.create(VerifyRows.outputs(part), part.size(), 3)));
+        }
+        assertSame(single(rows, 1e-9), LawfulSpark.verifyDataSets(VerifyRows.RESERVOIR,
+                sc.parallelize(sets, 3), 1e-9), "double data sets");
+
+        // float32 arrays are widened exactly: the reference is the single-machine float report
+        List<DataSet> floats = new ArrayList<>();
+        for (DataSet d : sets) {
+            floats.add(new DataSet(d.getFeatures().castTo(DataType.FLOAT), d.getLabels().castTo(DataType.FLOAT)));
+        }
+        DataSet all = DataSet.merge(floats);
+        ResidualReport singleFloat = ResidualReport.of(VerifyRows.LAWS, all.getFeatures().dup('c').data().asFloat(),
+                all.getLabels().dup('c').data().asFloat(), rows.size(), 1e-6);
+        assertSame(singleFloat, LawfulSpark.verifyDataSets(VerifyRows.RESERVOIR, sc.parallelize(floats, 2), 1e-6),
+                "float data sets");
+    }
+
+    @Test
+    void aRowOfTheWrongLengthIsNamedWithTheLayoutExpected() {
+        List<double[]> rows = new ArrayList<>(VerifyRows.rows(4, 20));
+        rows.set(13, new double[] {1, 2, 3});
+        Exception e = assertThrows(Exception.class,
+                () -> LawfulSpark.verify(VerifyRows.RESERVOIR, VerifyRows.rdd(sc, rows, 10, 10), 1e-9));
+        assertTrue(e.getMessage().contains("LawfulSpark.verify: row 13 (counted from 0 in the RDD's order) has 3"
+                + " values; the law set needs 5 values per row, its inputs then its outputs in declared order:"
+                + " inflow, dt, release, evap, stored"), e.getMessage());
+    }
+
+    @Test
+    void badArgumentsFailOnTheDriverWithTheirPlace() {
+        JavaRDD<double[]> rdd = VerifyRows.rdd(sc, VerifyRows.rows(5, 10), 10);
+        IllegalArgumentException tol = assertThrows(IllegalArgumentException.class,
+                () -> LawfulSpark.verify(VerifyRows.RESERVOIR, rdd, -1));
+        assertEquals("LawfulSpark.verify: the tolerance must be a finite number >= 0, found -1.0", tol.getMessage());
+        LawException law = assertThrows(LawException.class,
+                () -> LawfulSpark.verify("output y\nlaw a: y = z\n", rdd, 1e-9));
+        assertTrue(law.getMessage().contains("unknown name 'z'"), law.getMessage());
+    }
+
+    /** @return the single-machine report over {@code rows} in order: the reference */
+    static ResidualReport single(List<double[]> rows, double tolerance) {
+        return ResidualReport.of(VerifyRows.LAWS, VerifyRows.inputs(rows), VerifyRows.outputs(rows), rows.size(),
+                tolerance);
+    }
+
+    /** Asserts two reports have the same JSON (every statistic, to the bit, and the worst rows) and table. */
+    static void assertSame(ResidualReport expected, ResidualReport actual, String what) {
+        assertEquals(expected.toJson(), actual.toJson(), what);
+        assertEquals(expected.toTable(), actual.toTable(), what);
+    }
+}
