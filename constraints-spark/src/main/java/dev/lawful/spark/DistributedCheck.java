@@ -12,7 +12,7 @@ import java.util.Objects;
 import org.apache.spark.api.java.JavaRDD;
 
 /**
- * The distributed law check behind {@link LawfulSpark#verify} and {@link LawfulSpark#verifyDataSets}: one pass
+ * The distributed law check behind {@link LawfulSpark}'s verify methods: one pass
  * counts the rows of each partition (so every row gets its index in the whole, as one machine would number them),
  * a second feeds each partition's rows in blocks to one {@link ResidualAccumulator}, and the partial reports are
  * merged by {@code treeAggregate} to the driver. The merge is exact in any order and the row indices are global,

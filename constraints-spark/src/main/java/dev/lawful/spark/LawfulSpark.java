@@ -17,6 +17,7 @@ import java.util.jar.Manifest;
 import org.apache.spark.SparkConf;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
+import org.deeplearning4j.nn.api.Model;
 import org.deeplearning4j.nn.graph.ComputationGraph;
 import org.deeplearning4j.nn.multilayer.MultiLayerNetwork;
 import org.deeplearning4j.spark.api.RDDTrainingApproach;
@@ -25,6 +26,7 @@ import org.deeplearning4j.spark.impl.graph.SparkComputationGraph;
 import org.deeplearning4j.spark.impl.multilayer.SparkDl4jMultiLayer;
 import org.deeplearning4j.spark.impl.paramavg.ParameterAveragingTrainingMaster;
 import org.nd4j.linalg.dataset.DataSet;
+import org.nd4j.linalg.dataset.api.preprocessor.DataNormalization;
 
 /**
  * What networks with Lawful's law layers and vertices need to train on Apache Spark with Deeplearning4j's Spark
@@ -38,7 +40,7 @@ import org.nd4j.linalg.dataset.DataSet;
  * 1.0.0-M2 it hung in about one run of three on {@code local[2]} and trained nothing across executor JVMs on one
  * machine (every node took itself for the root), so {@link #multiLayer} and {@link #graph} refuse it.
  *
- * <p>{@link #verify} and {@link #verifyDataSets} check laws over a data set held in Spark, a distributed
+ * <p>{@link #verify}, {@link #verifyDataSets} and {@link #verifyPredictions} check laws over a data set held in Spark, a distributed
  * {@code lawful verify}: the report equals the one {@link ResidualReport#of} gives on one machine over the same
  * rows, bit for bit.
  *
@@ -203,7 +205,45 @@ public final class LawfulSpark {
      * @throws IllegalStateException                when the RDD gave different rows in the two passes
      */
     public static ResidualReport verifyDataSets(String lawText, JavaRDD<DataSet> data, double tolerance) {
-        return DistributedCheck.verify("LawfulSpark.verifyDataSets", lawText, data, tolerance, new DataSetRows());
+        String where = "LawfulSpark.verifyDataSets";
+        return DistributedCheck.verify(where, lawText, data, tolerance, new DataSetRows(where, null));
+    }
+
+    /**
+     * Like {@link #verifyDataSets} with the law outputs predicted by a trained network on the executors: for each
+     * data set, the network's outputs for its features (normalised with {@code normalizer} first, and the outputs
+     * reverted to physical units, when one is given) are the law outputs, and the features themselves the law
+     * inputs. The network and normalizer reach the executors as one model file in memory ({@code ModelSerializer}),
+     * broadcast for the check and removed after it; each partition restores its own copy. Its outputs must be the
+     * law set's outputs in declared order. The report equals the one {@link ResidualReport#of} gives over the same
+     * features and the network's outputs for the same data sets on one machine.
+     *
+     * @param lawText    the law text
+     * @param data       data sets of physical features, {@code n × inputWidth} when the laws have inputs (labels
+     *                   are ignored); not modified
+     * @param net        the trained network, a {@code ComputationGraph} with one output or a
+     *                   {@code MultiLayerNetwork} (not modified)
+     * @param normalizer the normalizer the network was trained with (features and labels), or null when it takes
+     *                   and gives physical values
+     * @param tolerance  the largest relative residual accepted, a finite number at least 0 (about 1e-6 for a
+     *                   float32 network)
+     * @return the report over every example
+     * @throws dev.lawful.algebra.LawException      when the law text has errors
+     * @throws IllegalArgumentException             as {@link #verify} says, or for another kind of network
+     * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when the features or predictions
+     *                                              have another shape: its message names the rows and the shape
+     * @throws IllegalStateException                when the RDD gave different rows in the two passes
+     */
+    public static ResidualReport verifyPredictions(String lawText, JavaRDD<DataSet> data, Model net,
+                                                   DataNormalization normalizer, double tolerance) {
+        String where = "LawfulSpark.verifyPredictions";
+        Predictor predictor = Predictor.broadcast(JavaSparkContext.fromSparkContext(data.context()), net,
+                normalizer, where);
+        try {
+            return DistributedCheck.verify(where, lawText, data, tolerance, new DataSetRows(where, predictor));
+        } finally {
+            predictor.destroy();
+        }
     }
 
     private static TrainingMaster<?, ?> supported(TrainingMaster<?, ?> master) {

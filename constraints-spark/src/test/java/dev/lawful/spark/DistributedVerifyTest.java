@@ -6,6 +6,9 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.lawful.algebra.LawException;
+import dev.lawful.dl4j.ConstrainedGraph;
+import dev.lawful.dl4j.LawLayer;
+import dev.lawful.dl4j.LawSpec;
 import dev.lawful.enforce.ResidualReport;
 import java.util.ArrayList;
 import java.util.List;
@@ -15,8 +18,12 @@ import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.BeforeAll;
 import org.junit.jupiter.api.Test;
 import org.junit.jupiter.api.TestInstance;
+import org.deeplearning4j.nn.graph.ComputationGraph;
+import org.deeplearning4j.nn.multilayer.MultiLayerNetwork;
 import org.nd4j.linalg.api.buffer.DataType;
+import org.nd4j.linalg.api.ndarray.INDArray;
 import org.nd4j.linalg.dataset.DataSet;
+import org.nd4j.linalg.dataset.api.preprocessor.NormalizerStandardize;
 import org.nd4j.linalg.factory.Nd4j;
 
 /**
@@ -92,6 +99,64 @@ class DistributedVerifyTest {
                 all.getLabels().dup('c').data().asFloat(), rows.size(), 1e-6);
         assertSame(singleFloat, LawfulSpark.verifyDataSets(VerifyRows.RESERVOIR, sc.parallelize(floats, 2), 1e-6),
                 "float data sets");
+    }
+
+    @Test
+    void aNetworksPredictionsGiveTheReportOfThePredictionsMadeOnOneMachine() {
+        // untrained networks: the check needs their outputs, not good ones
+        String lawText = VerifyRows.RESERVOIR + "complete stored, evap\n";
+        List<double[]> rows = new ArrayList<>(VerifyRows.rows(8, 1200));
+        rows.removeIf(r -> !java.util.Arrays.stream(r).allMatch(Double::isFinite));
+        List<DataSet> sets = new ArrayList<>();
+        for (int at = 0; at < rows.size(); at += 100) {
+            List<double[]> part = rows.subList(at, Math.min(rows.size(), at + 100));
+            sets.add(new DataSet(Nd4j.create(VerifyRows.inputs(part), part.size(), 2).castTo(DataType.FLOAT),
+                    Nd4j.create(VerifyRows.outputs(part), part.size(), 3).castTo(DataType.FLOAT)));
+        }
+        NormalizerStandardize normalizer = new NormalizerStandardize();
+        normalizer.fitLabel(true);
+        normalizer.fit(DataSet.merge(sets));
+        ComputationGraph graph = ConstrainedGraph.builder(LawSpec.of(lawText)).hidden(16).seed(9)
+                .normalizedWith(normalizer).build();
+        ResidualReport single = predictedOnOneMachine(lawText, sets, features -> {
+            INDArray in = features.dup();
+            normalizer.transform(in);
+            INDArray out = graph.outputSingle(in);
+            normalizer.revertLabels(out);
+            return out;
+        }, true);
+        assertTrue(single.withinTolerance(), "a law vertex completes in float: " + single.toTable());
+        assertSame(single, LawfulSpark.verifyPredictions(lawText, sc.parallelize(sets, 3), graph, normalizer, 1e-6),
+                "a graph with a law vertex, normalised");
+
+        // a layer network whose laws have no inputs: its features are only the network's
+        MultiLayerNetwork mln = DistributedTrainingChecks.mln(LawLayer.of(DistributedTrainingChecks.BALANCES), 2,
+                DataType.FLOAT, 10);
+        List<DataSet> plain = new ArrayList<>();
+        for (DataSet d : sets) {
+            plain.add(new DataSet(d.getFeatures().div(300), null));
+        }
+        assertSame(predictedOnOneMachine(DistributedTrainingChecks.BALANCES, plain, mln::output, false),
+                LawfulSpark.verifyPredictions(DistributedTrainingChecks.BALANCES, sc.parallelize(plain, 2), mln,
+                        null, 1e-6), "a layer network without normalizer");
+    }
+
+    /**
+     * @return the reference: the single-machine report over the features (when they are the law inputs) and the
+     *         network's predictions for each data set, made on the driver
+     */
+    private static ResidualReport predictedOnOneMachine(String lawText, List<DataSet> sets,
+                                                        java.util.function.UnaryOperator<INDArray> predict,
+                                                        boolean featuresAreInputs) {
+        List<INDArray> predictions = new ArrayList<>();
+        for (DataSet d : sets) {
+            predictions.add(predict.apply(d.getFeatures()));
+        }
+        INDArray x = Nd4j.vstack(sets.stream().map(DataSet::getFeatures).toArray(INDArray[]::new));
+        INDArray y = Nd4j.vstack(predictions.toArray(INDArray[]::new));
+        return ResidualReport.of(LawSpec.of(lawText).lawSet(),
+                featuresAreInputs ? x.castTo(DataType.FLOAT).dup('c').data().asFloat() : null,
+                y.castTo(DataType.FLOAT).dup('c').data().asFloat(), (int) y.size(0), 1e-6);
     }
 
     @Test
