@@ -103,6 +103,14 @@ class DistributedVerifyTest {
 
     @Test
     void aNetworksPredictionsGiveTheReportOfThePredictionsMadeOnOneMachine() {
+        assertPredictionsChecked(sc);
+    }
+
+    /**
+     * Checks {@link LawfulSpark#verifyPredictions} on {@code sc} for a normalised graph with a law vertex and a
+     * layer network without normalizer, against the single-machine report of the predictions made on the driver.
+     */
+    static void assertPredictionsChecked(JavaSparkContext sc) {
         // untrained networks: the check needs their outputs, not good ones
         String lawText = VerifyRows.RESERVOIR + "complete stored, evap\n";
         List<double[]> rows = new ArrayList<>(VerifyRows.rows(8, 1200));

@@ -58,8 +58,8 @@ class LocalClusterTrainingTest extends DistributedTrainingChecks {
 
     /**
      * The law check across executor JVMs: the reference is the single-machine report ({@code ResidualReport.of} over
-     * the same rows in order), which the distributed one must equal in every statistic (its JSON), for rows and for
-     * data sets.
+     * the same rows in order), which the distributed one must equal in every statistic (its JSON), for rows, for
+     * data sets and for a network's predictions made on the executors (from the network's serialized bytes).
      */
     @Test
     void theLawCheckAcrossExecutorJvmsEqualsTheSingleMachineReport() {
@@ -72,6 +72,7 @@ class LocalClusterTrainingTest extends DistributedTrainingChecks {
                 Nd4j.create(VerifyRows.outputs(part), part.size(), 3)));
         DistributedVerifyTest.assertSame(single, LawfulSpark.verifyDataSets(VerifyRows.RESERVOIR, sets, 1e-9),
                 "data sets");
+        DistributedVerifyTest.assertPredictionsChecked(sc);
     }
 
     /** Removes every broadcast made so far from this JVM's block manager, as the context cleaner would. */
