@@ -163,7 +163,7 @@ public final class LawfulSpark {
      * machine, however the rows are partitioned, including the worst sample of each law (its index counts rows
      * from 0 in the RDD's order) and the 99th percentile (exact nearest-rank up to
      * {@value dev.lawful.enforce.PercentileSketch#EXACT_LIMIT} finite residuals per law, beyond that from
-     * log-spaced buckets, at most 2<sup>-10</sup> above; {@link ResidualReport#exactPercentile()} says which).
+     * log-spaced buckets, less than 2<sup>-10</sup> above; {@link ResidualReport#exactPercentile()} says which).
      *
      * <p>Cost: two passes over the RDD, one that counts each partition's rows (for the global row indices) and one
      * that evaluates the laws; persist an RDD that is expensive to compute. Each executor parses the law text once
