@@ -40,9 +40,9 @@ import org.nd4j.linalg.dataset.api.preprocessor.DataNormalization;
  * 1.0.0-M2 it hung in about one run of three on {@code local[2]} and trained nothing across executor JVMs on one
  * machine (every node took itself for the root), so {@link #multiLayer} and {@link #graph} refuse it.
  *
- * <p>{@link #verify}, {@link #verifyDataSets} and {@link #verifyPredictions} check laws over a data set held in Spark, a distributed
- * {@code lawful verify}: the report equals the one {@link ResidualReport#of} gives on one machine over the same
- * rows, bit for bit.
+ * <p>{@link #verify}, {@link #verifyDataSets} and {@link #verifyPredictions} check laws over a data set held in
+ * Spark, a distributed {@code lawful verify}: the report equals the one {@link ResidualReport#of} gives on one
+ * machine over the same rows, bit for bit.
  *
  * <p>Spark 3.3 adds the {@code --add-opens} flags Java 17 needs to the executors' command line itself; the driver's
  * JVM must be started with {@link #DRIVER_JAVA_OPTIONS} (a JVM cannot open its own modules once running), which
@@ -180,7 +180,7 @@ public final class LawfulSpark {
      *                                              more than {@link Integer#MAX_VALUE} rows
      * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when a row is null or of the wrong
      *                                              length: its message names the row and the layout expected
-     * @throws IllegalStateException                when the RDD gave different rows in the two passes
+     * @throws IllegalStateException                when the two passes over the RDD counted different rows
      */
     public static ResidualReport verify(String lawText, JavaRDD<double[]> rows, double tolerance) {
         return DistributedCheck.verify("LawfulSpark.verify", lawText, rows, tolerance,
@@ -190,8 +190,7 @@ public final class LawfulSpark {
     /**
      * Like {@link #verify} for Deeplearning4j data sets in physical units: each example's features are the law
      * inputs and its labels the law outputs, in declared order (a data set may hold any number of examples). To
-     * check a trained network, put its predictions, reverted to physical units, in the labels beside the physical
-     * features. Float32 arrays are widened to double exactly. Row indices count examples from 0 in the RDD's order.
+     * check a trained network's predictions made on the executors, use {@link #verifyPredictions}. Float32 arrays are widened to double exactly. Row indices count examples from 0 in the RDD's order.
      *
      * @param lawText   the law text
      * @param data      data sets of {@code n × inputWidth} features (ignored when the laws have no inputs) and
@@ -202,7 +201,7 @@ public final class LawfulSpark {
      * @throws IllegalArgumentException             as {@link #verify} says
      * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when a data set's arrays have another
      *                                              shape: its message names the rows and the shape expected
-     * @throws IllegalStateException                when the RDD gave different rows in the two passes
+     * @throws IllegalStateException                when the two passes over the RDD counted different rows
      */
     public static ResidualReport verifyDataSets(String lawText, JavaRDD<DataSet> data, double tolerance) {
         String where = "LawfulSpark.verifyDataSets";
@@ -213,8 +212,8 @@ public final class LawfulSpark {
      * Like {@link #verifyDataSets} with the law outputs predicted by a trained network on the executors: for each
      * data set, the network's outputs for its features (normalised with {@code normalizer} first, and the outputs
      * reverted to physical units, when one is given) are the law outputs, and the features themselves the law
-     * inputs. The network and normalizer reach the executors as one model file in memory ({@code ModelSerializer}),
-     * broadcast for the check and removed after it; each partition restores its own copy. Its outputs must be the
+     * inputs. The network and normalizer reach the executors as serialized bytes ({@code ModelSerializer},
+     * {@code NormalizerSerializer}), broadcast for the check and removed after it; each partition restores its own copy. Its outputs must be the
      * law set's outputs in declared order. The report equals the one {@link ResidualReport#of} gives over the same
      * features and the network's outputs for the same data sets on one machine.
      *
@@ -232,7 +231,7 @@ public final class LawfulSpark {
      * @throws IllegalArgumentException             as {@link #verify} says, or for another kind of network
      * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when the features or predictions
      *                                              have another shape: its message names the rows and the shape
-     * @throws IllegalStateException                when the RDD gave different rows in the two passes
+     * @throws IllegalStateException                when the two passes over the RDD counted different rows
      */
     public static ResidualReport verifyPredictions(String lawText, JavaRDD<DataSet> data, Model net,
                                                    DataNormalization normalizer, double tolerance) {
