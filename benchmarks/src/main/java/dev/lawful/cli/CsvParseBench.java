@@ -20,7 +20,7 @@ import org.openjdk.jmh.annotations.Warmup;
 
 /**
  * The hot path of a large CSV file, per row of nine numbers (the reformer's free-output file): splitting a line into
- * values and parsing them, by the command line's own splitter ({@link CsvSource.Fields}, on bytes, which keeps line
+ * values and parsing them, by the command line's own splitter ({@link CsvFields}, on bytes, which keeps line
  * and column numbers for messages) with FastDoubleParser or with the JDK's {@code Double.parseDouble}, against
  * FastCSV 3.4.0's reader with either parser. Nanoseconds per row; lives in the command line's package to reach its
  * splitter. Run: {@code benchmarks/run.sh CsvParseBench}.
@@ -61,9 +61,9 @@ public class CsvParseBench {
             while (bytes[e] != '\n') {
                 e++;
             }
-            CsvSource.Fields f = new CsvSource.Fields(bytes, pos, e, (byte) ',');
+            CsvFields f = new CsvFields(bytes, pos, e, (byte) ',');
             while (f.nextAt("bench", 1)) {
-                sum += fast ? f.number("bench", 0) : Double.parseDouble(f.text(null, null));
+                sum += fast ? f.number() : Double.parseDouble(f.text());
             }
             pos = e + 1;
         }

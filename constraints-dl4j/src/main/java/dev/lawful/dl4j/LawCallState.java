@@ -40,6 +40,9 @@ final class LawCallState implements Serializable {
     private double[] spareY;
     /** An array derived from the inputs on the way to the cached solution (a vertex's physical x), or null. */
     private double[] lastDerived;
+    private double[] spareDerived;
+    /** Buffers used within one call only (physical free outputs, normalised outputs), by slot. */
+    private final double[][] scratch = new double[2][];
     private BoundCheck lastCheck;
     private transient Completion lastOwner;
     private transient Object workspace;
@@ -115,6 +118,20 @@ final class LawCallState implements Serializable {
         return lastDerived;
     }
 
+    /**
+     * @return a buffer of {@code length} for the array derived on the way to the next solution: the spare when it
+     *         fits, else a new array (it stays valid as long as the solution it is remembered with)
+     */
+    double[] derivedBuffer(int length) {
+        return NdArrays.reuse(spareDerived, length);
+    }
+
+    /** @return the scratch buffer of {@code slot} (0 or 1), valid until the next request for that slot */
+    double[] scratch(int slot, int length) {
+        scratch[slot] = NdArrays.reuse(scratch[slot], length);
+        return scratch[slot];
+    }
+
     /** @return a buffer of {@code length} for the next solution: the spare when it fits, else a new array */
     double[] solutionBuffer(int length) {
         return NdArrays.reuse(spareY, length);
@@ -137,6 +154,9 @@ final class LawCallState implements Serializable {
         }
         spareY = lastY;
         lastY = y;
+        if (lastDerived != derived) {
+            spareDerived = lastDerived;
+        }
         lastDerived = derived;
         lastOwner = owner;
         lastCheck = check;

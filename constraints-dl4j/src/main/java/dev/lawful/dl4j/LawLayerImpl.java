@@ -77,7 +77,8 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
             return y;
         }
         Scaling out = layerConf().checkedOutputScaling(c);
-        double[] z = out == null ? zIn : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
+        double[] z = out == null ? zIn
+                : NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch, state.scratch(0, zIn.length));
         y = state.solutionBuffer(batch * c.outputWidth());
         c.forward(null, z, batch, y, null, workspace(c), check);
         state.remember(c, check, y, null, zIn);
@@ -110,7 +111,8 @@ public class LawLayerImpl extends AbstractLayer<LawLayer> {
         double[] y = complete(c, batch, zIn, training);
         Scaling out = layerConf().checkedOutputScaling(c);
         if (out != null) {
-            y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, zIn, batch);
+            y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, zIn, batch,
+                    state.scratch(1, batch * c.outputWidth()));
         }
         return y;
     }

@@ -106,8 +106,8 @@ public class LawVertexImpl extends BaseGraphVertex {
             Scaling out = config.checkedOutputScaling(c);
             double[] z = zIn;
             if (out != null) {
-                x = in.toPhysical(xIn, batch);
-                z = NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch);
+                x = in.toPhysical(xIn, batch, state.derivedBuffer(xIn.length));
+                z = NdArrays.physicalFree(out, c.freeOutputs(), zIn, batch, state.scratch(0, zIn.length));
             }
             y = state.solutionBuffer(batch * c.outputWidth());
             c.forward(x, z, batch, y, null, workspace(c), check);
@@ -150,7 +150,8 @@ public class LawVertexImpl extends BaseGraphVertex {
         double[] y = complete(c, batch, given, training);
         Scaling out = config.checkedOutputScaling(c);
         if (out != null) {
-            y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, given[1], batch);
+            y = NdArrays.normalisedOutputs(out, c.freeOutputs(), y, given[1], batch,
+                    state.scratch(1, batch * c.outputWidth()));
         }
         return NdArrays.fromDouble(workspaceMgr, ArrayType.ACTIVATIONS, dataType, y, batch, c.outputWidth());
     }

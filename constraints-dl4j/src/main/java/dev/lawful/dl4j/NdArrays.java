@@ -197,10 +197,13 @@ final class NdArrays {
         return s;
     }
 
-    /** @return the physical free outputs z = scale·z_n + offset, with the output scaling's free columns */
-    static double[] physicalFree(Scaling out, int[] free, double[] zn, int batch) {
+    /**
+     * @param into a buffer from an earlier call, used when it holds exactly {@code batch × free.length} values
+     * @return the physical free outputs z = scale·z_n + offset, with the output scaling's free columns
+     */
+    static double[] physicalFree(Scaling out, int[] free, double[] zn, int batch, double[] into) {
         int nf = free.length;
-        double[] z = new double[batch * nf];
+        double[] z = reuse(into, batch * nf);
         for (int s = 0; s < batch; s++) {
             for (int f = 0; f < nf; f++) {
                 int j = free[f];
@@ -213,12 +216,13 @@ final class NdArrays {
     /**
      * @return the normalised outputs, (y − offset)/scale per declared column, except that a free column the
      *         completion left as given takes the normalised free output {@code zn} unchanged (the same value, with no
-     *         round trip through physical units); a free output a limit moved is normalised like the others
+     *         round trip through physical units); a free output a limit moved is normalised like the others;
+     *         written into {@code into} when it holds exactly {@code batch × width} values
      */
-    static double[] normalisedOutputs(Scaling out, int[] free, double[] y, double[] zn, int batch) {
+    static double[] normalisedOutputs(Scaling out, int[] free, double[] y, double[] zn, int batch, double[] into) {
         int p = out.width();
         int nf = free.length;
-        double[] yn = new double[batch * p];
+        double[] yn = reuse(into, batch * p);
         for (int s = 0; s < batch; s++) {
             for (int j = 0; j < p; j++) {
                 yn[s * p + j] = (y[s * p + j] - out.offset(j)) / out.scale(j);

@@ -102,8 +102,18 @@ public final class Scaling implements java.io.Serializable {
      * @return a new array of the physical values, scale·normalised + offset per column, in double
      */
     public double[] toPhysical(double[] normalised, int batch) {
+        return toPhysical(normalised, batch, null);
+    }
+
+    /**
+     * {@link #toPhysical(double[], int)} into {@code into} when it holds exactly {@code batch × width()} values (a
+     * buffer from an earlier call), else into a new array.
+     *
+     * @return the array written
+     */
+    double[] toPhysical(double[] normalised, int batch, double[] into) {
         int w = width();
-        double[] out = new double[batch * w];
+        double[] out = NdArrays.reuse(into, batch * w);
         for (int i = 0; i < out.length; i++) {
             int j = i % w;
             out[i] = scale[j] * normalised[i] + offset[j];

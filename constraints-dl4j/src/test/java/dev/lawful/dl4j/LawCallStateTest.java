@@ -83,6 +83,22 @@ class LawCallStateTest {
     }
 
     @Test
+    void aDerivedBufferLastsAsLongAsItsSolutionAndScratchBuffersAreKeptPerSlot() {
+        LawCallState s = new LawCallState(1, 0);
+        double[] x1 = s.derivedBuffer(3);
+        s.remember(C, BoundCheck.SKIP, s.solutionBuffer(4), x1, s.convert(0, rows(1, 2)));
+        double[] x2 = s.derivedBuffer(3);
+        assertNotSame(x1, x2, "the cached solution's derived array is not handed out again");
+        s.remember(C, BoundCheck.SKIP, s.solutionBuffer(4), x2, s.convert(0, rows(3, 4)));
+        assertSame(x1, s.derivedBuffer(3), "the third solve derives into the first one's buffer");
+        assertSame(x2, s.derived());
+        double[] a = s.scratch(0, 5);
+        assertSame(a, s.scratch(0, 5));
+        assertNotSame(a, s.scratch(1, 5), "each slot has its own");
+        assertEquals(7, s.scratch(0, 7).length);
+    }
+
+    @Test
     void aHitGivesTheNewConversionBackAsTheSpare() {
         LawCallState s = new LawCallState(1, 0);
         double[] z1 = s.convert(0, rows(1, 2));

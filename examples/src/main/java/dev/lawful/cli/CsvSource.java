@@ -1,6 +1,5 @@
 package dev.lawful.cli;
 
-import ch.randelshofer.fastdoubleparser.JavaDoubleParser;
 import java.io.IOException;
 import java.io.InputStream;
 import java.nio.ByteBuffer;
@@ -21,7 +20,7 @@ import java.util.Map;
  * saved by a spreadsheet in a locale with decimal commas is read, and its {@code 0,5} is named as a decimal comma).
  *
  * <p>The reading thread only cuts the input at line ends and counts lines and rows (so every chunk knows the line and
- * row it starts at); parsing the numbers happens in {@link Chunk#parse}, on a worker. Numbers are parsed by
+ * row it starts at); parsing the numbers happens in {@link Chunk#parse}, on a worker, by {@link CsvFields}. Numbers are parsed by
  * FastDoubleParser after our own check of the accepted forms (it reads the nearest double, as
  * {@link Double#parseDouble} does; docs/design-notes.md has the measurement). Messages name the file, the line as an
  * editor counts it and the column.
@@ -35,8 +34,6 @@ final class CsvSource implements RowSource {
     static final int CHUNK_BYTES = 1 << 18;
     /** Notes about non-finite values kept per chunk. */
     private static final int NOTES = 3;
-    /** Longest piece of a bad value quoted in a message. */
-    private static final int QUOTE_LIMIT = 40;
 
     private final String name;
     private final InputStream in;
@@ -246,9 +243,9 @@ final class CsvSource implements RowSource {
     private List<String> names(String text) {
         byte[] b = text.getBytes(StandardCharsets.UTF_8);
         List<String> names = new ArrayList<>();
-        Fields f = new Fields(b, 0, b.length, separator);
+        CsvFields f = new CsvFields(b, 0, b.length, separator);
         while (f.nextAt(name, headerLine)) {
-            names.add(f.text(name, "line " + headerLine));
+            names.add(f.text());
         }
         Map<String, Integer> seen = new HashMap<>();
         for (int c = 0; c < names.size(); c++) {
@@ -352,7 +349,7 @@ final class CsvSource implements RowSource {
 
         private void row(int from, int to, long at, int[] wantedAt, List<String> names, double[] values, int offset,
                          List<NonFinite> notes) {
-            Fields f = new Fields(bytes, from, to, separator);
+            CsvFields f = new CsvFields(bytes, from, to, separator);
             int count = 0;
             DataException bad = null;
             while (f.nextAt(name, at)) {
@@ -362,7 +359,7 @@ final class CsvSource implements RowSource {
                     continue;
                 }
                 try {
-                    double v = f.number(name, at);
+                    double v = f.number();
                     values[offset + j] = v;
                     if (!Double.isFinite(v) && notes.size() < NOTES) {
                         notes.add(new NonFinite(at, names.get(j), f.shown(), v));
@@ -432,185 +429,5 @@ final class CsvSource implements RowSource {
         String what = v > 0 ? "infinity" : "minus infinity";
         String t = text.toLowerCase(java.util.Locale.ROOT);
         return t.contains("inf") ? what : what + " (beyond the largest double, 1.8e308)";
-    }
-
-    /** Splits one line into its values, one at a time, and parses a value as a number. */
-    static final class Fields {
-        private final byte[] b;
-        private final int to;
-        private final byte separator;
-        private int pos;
-        private boolean done;
-        private int from;
-        private int until;
-        private String quoted;
-
-        Fields(byte[] b, int from, int to, byte separator) {
-            this.b = b;
-            this.pos = from;
-            this.to = to;
-            this.separator = separator;
-        }
-
-        /**
-         * Moves to the next value; false after the last.
-         *
-         * @throws DataException naming {@code file} and {@code line} when a quote is not closed or text follows it
-         */
-        boolean nextAt(String file, long line) {
-            try {
-                return next();
-            } catch (DataException e) {
-                throw DataException.at(file, "line " + line, null, e.getMessage());
-            }
-        }
-
-        private boolean next() {
-            if (done) {
-                return false;
-            }
-            int j = pos;
-            while (j < to && (b[j] == ' ' || b[j] == '\t' && separator != '\t')) {
-                j++;
-            }
-            quoted = null;
-            if (j < to && b[j] == '"') {
-                return nextQuoted(j);
-            }
-            int e = j;
-            while (e < to && b[e] != separator) {
-                e++;
-            }
-            int t = e;
-            while (t > j && (b[t - 1] == ' ' || b[t - 1] == '\t' && separator != '\t')) {
-                t--;
-            }
-            from = j;
-            until = t;
-            done = e >= to;
-            pos = e + 1;
-            return true;
-        }
-
-        private boolean nextQuoted(int j) {
-            java.io.ByteArrayOutputStream sb = new java.io.ByteArrayOutputStream();
-            int k = j + 1;
-            while (true) {
-                if (k >= to) {
-                    throw new DataException("a value opens a quote that is not closed on this line");
-                }
-                if (b[k] == '"') {
-                    if (k + 1 < to && b[k + 1] == '"') {
-                        sb.write('"');
-                        k += 2;
-                        continue;
-                    }
-                    k++;
-                    break;
-                }
-                sb.write(b[k++]);
-            }
-            while (k < to && (b[k] == ' ' || b[k] == '\t' && separator != '\t')) {
-                k++;
-            }
-            if (k < to && b[k] != separator) {
-                throw new DataException("a value has text after its closing quote; expected a separator or the end"
-                        + " of the line");
-            }
-            quoted = sb.toString(StandardCharsets.UTF_8);
-            done = k >= to;
-            pos = k + 1;
-            return true;
-        }
-
-        /** @return the current value as text */
-        String text(String file, String place) {
-            return quoted != null ? quoted : new String(b, from, until - from, StandardCharsets.UTF_8);
-        }
-
-        /** @return the current value as text, shortened for a message */
-        String shown() {
-            String s = text(null, null);
-            return s.length() > QUOTE_LIMIT ? s.substring(0, QUOTE_LIMIT) + "..." : s;
-        }
-
-        /**
-         * @return the current value as a number
-         * @throws DataException (message without the place) when it is not one of the accepted forms
-         */
-        double number(String file, long line) {
-            if (quoted != null) {
-                byte[] q = quoted.getBytes(StandardCharsets.UTF_8);
-                return parse(q, 0, q.length);
-            }
-            return parse(b, from, until);
-        }
-
-        private double parse(byte[] s, int i0, int n) {
-            if (n == i0) {
-                throw new DataException("the value is empty; expected a number");
-            }
-            int i = i0;
-            boolean negative = s[i] == '-';
-            if (s[i] == '+' || s[i] == '-') {
-                i++;
-            }
-            int special = special(s, i, n);
-            if (special != 0) {
-                return special == 1 ? Double.NaN : negative ? Double.NEGATIVE_INFINITY : Double.POSITIVE_INFINITY;
-            }
-            if (!decimal(s, i, n)) {
-                String text = new String(s, i0, n - i0, StandardCharsets.UTF_8);
-                String shownText = text.length() > QUOTE_LIMIT ? text.substring(0, QUOTE_LIMIT) + "..." : text;
-                throw new DataException("'" + shownText + "' is not a number"
-                        + (text.matches("[+-]?[0-9]*,[0-9]+") ? " (a decimal comma? write numbers with a decimal"
-                        + " point)" : ""));
-            }
-            return JavaDoubleParser.parseDouble(s, i0, n - i0);
-        }
-
-        /** @return 1 for NaN, 2 for Inf or Infinity (any case), 0 otherwise */
-        private static int special(byte[] s, int i, int n) {
-            int len = n - i;
-            if (len != 3 && len != 8) {
-                return 0;
-            }
-            String t = new String(s, i, len, StandardCharsets.ISO_8859_1).toLowerCase(java.util.Locale.ROOT);
-            return t.equals("nan") ? 1 : t.equals("inf") || t.equals("infinity") ? 2 : 0;
-        }
-
-        /** @return whether s[i, n) is digits, an optional point and digits (one digit at least), an exponent */
-        private static boolean decimal(byte[] s, int i, int n) {
-            int digits = 0;
-            while (i < n && s[i] >= '0' && s[i] <= '9') {
-                i++;
-                digits++;
-            }
-            if (i < n && s[i] == '.') {
-                i++;
-                while (i < n && s[i] >= '0' && s[i] <= '9') {
-                    i++;
-                    digits++;
-                }
-            }
-            if (digits == 0) {
-                return false;
-            }
-            if (i < n && (s[i] == 'e' || s[i] == 'E')) {
-                i++;
-                if (i < n && (s[i] == '+' || s[i] == '-')) {
-                    i++;
-                }
-                int exponent = 0;
-                while (i < n && s[i] >= '0' && s[i] <= '9') {
-                    i++;
-                    exponent++;
-                }
-                if (exponent == 0) {
-                    return false;
-                }
-            }
-            return i == n;
-        }
     }
 }

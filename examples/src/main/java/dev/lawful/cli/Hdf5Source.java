@@ -29,12 +29,15 @@ import java.util.Set;
  *   <li>datasets of another first dimension (a NetCDF coordinate variable of another dimension, say) and non-numeric
  *       ones are left out.</li>
  * </ul>
- * Each chunk reads a slice of rows of every dataset ({@code Dataset.getData(offset, shape)}), so memory stays bounded.
+ * Each chunk reads a slice of rows of every dataset, so memory stays bounded: a contiguous float dataset straight
+ * from the file (one read per chunk), any other through jhdf ({@code Dataset.getData(offset, shape)}).
  * Rows are named {@code row N}, counted from 1.
  */
 final class Hdf5Source extends BinarySource {
     private final String name;
     private final HdfFile file;
+    /** The file itself, for reading contiguous float datasets directly; null when that is not safe. */
+    private final java.nio.channels.FileChannel raw;
     private final List<Dataset> datasets;
     private final List<Integer> firstColumn;
     private final List<String> columns;
@@ -47,6 +50,7 @@ final class Hdf5Source extends BinarySource {
         super(name, columns, size, "its dataset names");
         this.name = name;
         this.file = file;
+        this.raw = rawChannel(file);
         this.datasets = datasets;
         this.firstColumn = firstColumn;
         this.columns = columns;
@@ -141,8 +145,49 @@ final class Hdf5Source extends BinarySource {
         return out;
     }
 
+    /**
+     * @return a channel on the file when its addresses are file offsets (no user block, HDF5 File Format
+     *         Specification 3.0, section II.A: addresses are relative to the superblock's base, which a user block
+     *         moves), else null
+     */
+    private static java.nio.channels.FileChannel rawChannel(HdfFile file) {
+        try {
+            return file.getUserBlockSize() == 0 ? java.nio.channels.FileChannel.open(file.getFileAsPath(),
+                    java.nio.file.StandardOpenOption.READ) : null;
+        } catch (IOException | RuntimeException e) {
+            return null;
+        }
+    }
+
+    /**
+     * @return the rows of a contiguous dataset of float32 or float64 read straight from the file, as raw values in
+     *         their byte order (jhdf's own slices read a two-dimensional dataset one row at a time); null when the
+     *         dataset is stored otherwise (chunked, compressed, compact, integers), which jhdf then reads
+     */
+    private BinaryChunk.Part direct(Dataset d, int column, int width, int n) throws IOException {
+        if (raw == null || !(d instanceof io.jhdf.api.dataset.ContiguousDataset c)
+                || d.getDataLayout() != io.jhdf.object.message.DataLayout.CONTIGUOUS
+                || !(d.getDataType() instanceof io.jhdf.object.datatype.FloatingPoint f)
+                || (f.getSize() != 4 && f.getSize() != 8)) {
+            return null;
+        }
+        long address = c.getDataAddress();
+        if (address < 0) {
+            return null;
+        }
+        int item = f.getSize();
+        ByteBuffer b = ByteBuffer.allocate(n * width * item);
+        long at = address + next * width * item;
+        while (b.hasRemaining()) {
+            if (raw.read(b, at + b.position()) < 0) {
+                throw DataException.at(name, "row " + (next + 1), null, "the file ends inside dataset " + d.getPath());
+            }
+        }
+        return new BinaryChunk.Part(b.array(), column, width, item, f.getByteOrder());
+    }
+
     @Override
-    public Chunk next() {
+    public Chunk next() throws IOException {
         if (next >= rows) {
             return null;
         }
@@ -152,6 +197,11 @@ final class Hdf5Source extends BinarySource {
             Dataset d = datasets.get(i);
             int[] dims = d.getDimensions();
             int width = dims.length < 2 ? 1 : dims[1];
+            BinaryChunk.Part part = direct(d, firstColumn.get(i), width, n);
+            if (part != null) {
+                parts.add(part);
+                continue;
+            }
             Object slice;
             try {
                 slice = dims.length < 2 ? d.getData(new long[] {next}, new int[] {n})
@@ -201,7 +251,10 @@ final class Hdf5Source extends BinarySource {
     }
 
     @Override
-    public void close() {
+    public void close() throws IOException {
         file.close();
+        if (raw != null) {
+            raw.close();
+        }
     }
 }

@@ -14,7 +14,8 @@ import java.util.concurrent.ThreadLocalRandom;
 /**
  * Where a command writes a file, the way other command-line tools do:
  * <ul>
- *   <li>{@code -} is standard output;</li>
+ *   <li>{@code -} is standard output, and so are {@code /dev/stdout}, {@code /dev/fd/1} and
+ *       {@code /proc/self/fd/1};</li>
  *   <li>a symbolic link is written through: the file it points to gets the content and the link stays a link;</li>
  *   <li>a special file (a terminal, a pipe, {@code /dev/null}, {@code /dev/stdout}) is written directly;</li>
  *   <li>a regular file (or a new one) is written to a hidden temporary file beside it, which replaces it only when
@@ -23,6 +24,9 @@ import java.util.concurrent.ThreadLocalRandom;
  * </ul>
  */
 final class OutputTarget {
+    /** Names of standard output on Linux and other Unix systems (common practice). */
+    private static final java.util.Set<String> STANDARD_OUTPUT_NAMES = java.util.Set.of("/dev/stdout", "/dev/fd/1",
+            "/proc/self/fd/1");
     /** Links followed at most, as the operating system's own limit on link chains. */
     private static final int MAX_LINKS = 40;
 
@@ -47,16 +51,21 @@ final class OutputTarget {
      * @throws IOException when the path is a folder or its folder does not exist (the message says which)
      */
     static OutputTarget of(String argument, OutputStream stdout) throws IOException {
-        if (argument.equals("-")) {
-            return new OutputTarget("standard output", null, stdout, true);
+        if (argument.equals("-") || STANDARD_OUTPUT_NAMES.contains(argument)) {
+            // /dev/stdout and its aliases are this process's standard output: written through the stream, so the
+            // data and the summary (then on standard error) never overwrite each other in a redirected file
+            return new OutputTarget(argument.equals("-") ? "standard output" : argument, null, stdout, true);
         }
         Path path = Path.of(argument);
         Path real = followLinks(path);
         if (Files.isDirectory(real)) {
             throw new IOException("it is a directory");
         }
-        if (Files.exists(real) && !Files.isRegularFile(real)) {
-            // a device, a pipe or a terminal: written in place (the path as given, so the system resolves it)
+        Path absolute = real.toAbsolutePath().normalize();
+        if (Files.exists(real) && !Files.isRegularFile(real) || absolute.startsWith("/dev")
+                || absolute.startsWith("/proc")) {
+            // a device, a pipe or a terminal, or a name like /dev/stdout that stands for one even when it leads to a
+            // regular file (a shell redirection): written in place, the path as given, so the system resolves it
             return new OutputTarget(argument, path, null, true);
         }
         Path parent = real.toAbsolutePath().getParent();

@@ -101,6 +101,18 @@ class StreamingTest {
     }
 
     @Test
+    void devStdoutIsStandardOutput() throws IOException {
+        Path in = write("in.csv", HEADER + "\n" + ROW + "\n");
+        // /dev/stdout names the process's standard output (common practice on Linux and other Unix systems)
+        Captured c = LawfulTest.run("complete", reformer(), "--in", in.toString(), "--out", "/dev/stdout");
+        assertEquals(0, c.code(), c.err());
+        assertTrue(c.out().startsWith("feed[0],feed[1],"), "the table, and only it, on standard output: " + c.out());
+        CsvTable t = CsvTable.parse("stdout", c.out());
+        assertEquals(0.3, t.get(0, t.column("out[2]")), 1e-15);
+        assertTrue(c.err().contains("wrote /dev/stdout: 1 row of " + in), c.err());
+    }
+
+    @Test
     void aLinkIsWrittenThroughAndStaysALink() throws IOException {
         Path in = write("in.csv", HEADER + "\n" + ROW + "\n");
         Path real = write("real.csv", "old\n");
