@@ -190,7 +190,8 @@ public final class LawfulSpark {
     /**
      * Like {@link #verify} for Deeplearning4j data sets in physical units: each example's features are the law
      * inputs and its labels the law outputs, in declared order (a data set may hold any number of examples). To
-     * check a trained network's predictions made on the executors, use {@link #verifyPredictions}. Float32 arrays are widened to double exactly. Row indices count examples from 0 in the RDD's order.
+     * check a trained network's predictions made on the executors, use {@link #verifyPredictions}. Float32 arrays
+     * are widened to double exactly. Row indices count examples from 0 in the RDD's order.
      *
      * @param lawText   the law text
      * @param data      data sets of {@code n × inputWidth} features (ignored when the laws have no inputs) and
@@ -213,9 +214,10 @@ public final class LawfulSpark {
      * data set, the network's outputs for its features (normalised with {@code normalizer} first, and the outputs
      * reverted to physical units, when one is given) are the law outputs, and the features themselves the law
      * inputs. The network and normalizer reach the executors as serialized bytes ({@code ModelSerializer},
-     * {@code NormalizerSerializer}), broadcast for the check and removed after it; each partition restores its own copy. Its outputs must be the
-     * law set's outputs in declared order. The report equals the one {@link ResidualReport#of} gives over the same
-     * features and the network's outputs for the same data sets on one machine.
+     * {@code NormalizerSerializer}), broadcast for the check and removed after it; each partition restores its own
+     * copy. Its outputs must be the law set's outputs in declared order. The report equals the one
+     * {@link ResidualReport#of} gives over the same features and the network's outputs for the same data sets on
+     * one machine.
      *
      * @param lawText    the law text
      * @param data       data sets of physical features, {@code n × inputWidth} when the laws have inputs (labels

@@ -11,7 +11,10 @@ import dev.lawful.dl4j.LawLayer;
 import dev.lawful.dl4j.LawSpec;
 import dev.lawful.enforce.ResidualReport;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.List;
+import java.util.concurrent.atomic.AtomicInteger;
+import java.util.function.UnaryOperator;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
 import org.junit.jupiter.api.AfterAll;
@@ -114,7 +117,7 @@ class DistributedVerifyTest {
         // untrained networks: the check needs their outputs, not good ones
         String lawText = VerifyRows.RESERVOIR + "complete stored, evap\n";
         List<double[]> rows = new ArrayList<>(VerifyRows.rows(8, 1200));
-        rows.removeIf(r -> !java.util.Arrays.stream(r).allMatch(Double::isFinite));
+        rows.removeIf(r -> !Arrays.stream(r).allMatch(Double::isFinite));
         List<DataSet> sets = new ArrayList<>();
         for (int at = 0; at < rows.size(); at += 100) {
             List<double[]> part = rows.subList(at, Math.min(rows.size(), at + 100));
@@ -154,7 +157,7 @@ class DistributedVerifyTest {
      *         network's predictions for each data set, made on the driver
      */
     private static ResidualReport predictedOnOneMachine(String lawText, List<DataSet> sets,
-                                                        java.util.function.UnaryOperator<INDArray> predict,
+                                                        UnaryOperator<INDArray> predict,
                                                         boolean featuresAreInputs) {
         List<INDArray> predictions = new ArrayList<>();
         for (DataSet d : sets) {
@@ -187,6 +190,29 @@ class DistributedVerifyTest {
         LawException law = assertThrows(LawException.class,
                 () -> LawfulSpark.verify("output y\nlaw a: y = z\n", rdd, 1e-9));
         assertTrue(law.getMessage().contains("unknown name 'z'"), law.getMessage());
+    }
+
+    /** Rows the RDD below has given so far, in this JVM (local[2] runs its tasks here). */
+    private static final AtomicInteger GIVEN = new AtomicInteger();
+
+    @Test
+    void anRddThatGivesOtherRowsTheSecondTimeIsAnErrorNotAWrongReport() {
+        GIVEN.set(0);
+        // the first pass sees all 100 rows, the second only the 20 given before the 120th
+        JavaRDD<double[]> shifting = VerifyRows.rdd(sc, VerifyRows.rows(11, 100), 50, 50)
+                .filter(row -> GIVEN.incrementAndGet() <= 120);
+        IllegalStateException e = assertThrows(IllegalStateException.class,
+                () -> LawfulSpark.verify(VerifyRows.RESERVOIR, shifting, 1e-9));
+        assertEquals("LawfulSpark.verify: the RDD gave 100 rows when counted and 20 when checked; its contents must"
+                + " be the same each time it is computed (persist it first, or make it deterministic)", e.getMessage());
+    }
+
+    @Test
+    void onlyGraphsAndLayerNetworksPredict() {
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class, () -> LawfulSpark.verifyPredictions(
+                VerifyRows.RESERVOIR, sc.parallelize(List.<DataSet>of()), null, null, 1e-6));
+        assertEquals("LawfulSpark.verifyPredictions: the network must be a ComputationGraph or a MultiLayerNetwork,"
+                + " found null", e.getMessage());
     }
 
     /** @return the single-machine report over {@code rows} in order: the reference */
