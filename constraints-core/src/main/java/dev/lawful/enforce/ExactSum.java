@@ -1,5 +1,8 @@
 package dev.lawful.enforce;
 
+import java.io.DataInput;
+import java.io.DataOutput;
+import java.io.IOException;
 import java.math.BigInteger;
 import java.util.Arrays;
 
@@ -130,6 +133,25 @@ public final class ExactSum {
         }
         // long to double rounds to nearest, ties to even; the sticky bit makes that the rounding of the true quotient
         return Math.scalb((double) q, -shift - 1074);
+    }
+
+    /** Writes the sum for {@link #read}: its digits with the carries propagated, then the count of infinities. */
+    void write(DataOutput out) throws IOException {
+        long[] d = Arrays.copyOf(digit, DIGITS);
+        carry(d);
+        for (long v : d) {
+            out.writeInt((int) v);
+        }
+        out.writeLong(infinite);
+    }
+
+    /** Reads what {@link #write} wrote into this empty sum. */
+    void read(DataInput in) throws IOException {
+        for (int i = 0; i < DIGITS; i++) {
+            digit[i] = in.readInt() & MASK;
+        }
+        pending = 0;
+        infinite = in.readLong();
     }
 
     private void carry() {

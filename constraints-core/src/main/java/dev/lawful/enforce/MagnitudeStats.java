@@ -1,5 +1,9 @@
 package dev.lawful.enforce;
 
+import java.io.DataInput;
+import java.io.DataOutput;
+import java.io.IOException;
+
 /**
  * The running summaries of one law's residual magnitudes (absolute or relative) behind a {@link ResidualStats}: the
  * largest, an {@link ExactSum} for the mean and a {@link PercentileSketch} for the 99th percentile. Every piece
@@ -29,6 +33,20 @@ final class MagnitudeStats {
         }
         sum.merge(other.sum);
         sketch.merge(other.sketch);
+    }
+
+    /** Writes the summaries for {@link #read}. */
+    void write(DataOutput out) throws IOException {
+        out.writeDouble(max);
+        sum.write(out);
+        sketch.write(out);
+    }
+
+    /** Reads what {@link #write} wrote into these empty summaries. */
+    void read(DataInput in) throws IOException {
+        max = in.readDouble();
+        sum.read(in);
+        sketch.read(in);
     }
 
     /** @return whether the percentile is exact (see {@link PercentileSketch#isExact()}) */

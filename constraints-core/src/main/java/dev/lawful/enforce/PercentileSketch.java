@@ -1,5 +1,8 @@
 package dev.lawful.enforce;
 
+import java.io.DataInput;
+import java.io.DataOutput;
+import java.io.IOException;
 import java.util.Arrays;
 
 /**
@@ -114,6 +117,78 @@ public final class PercentileSketch {
             exact = null;
         }
         n += other.n;
+    }
+
+    /**
+     * Writes the sketch for {@link #read}: the count, the exact values while kept, and the non-empty buckets only
+     * (binade, position, count, largest value), so the size grows with the buckets used, not with the range.
+     */
+    void write(DataOutput out) throws IOException {
+        out.writeLong(n);
+        out.writeBoolean(exact != null);
+        if (exact != null) {
+            for (int i = 0; i < n; i++) {
+                out.writeDouble(exact[i]);
+            }
+        }
+        int used = 0;
+        for (long[] c : counts) {
+            used += c == null ? 0 : 1;
+        }
+        out.writeInt(used);
+        for (int b = 0; b < BINADES; b++) {
+            if (counts[b] == null) {
+                continue;
+            }
+            int filled = 0;
+            for (long c : counts[b]) {
+                filled += c == 0 ? 0 : 1;
+            }
+            out.writeShort(b);
+            out.writeShort(filled);
+            for (int s = 0; s < PER_BINADE; s++) {
+                if (counts[b][s] != 0) {
+                    out.writeShort(s);
+                    out.writeLong(counts[b][s]);
+                    out.writeDouble(largest[b][s]);
+                }
+            }
+        }
+    }
+
+    /**
+     * Reads what {@link #write} wrote into this empty sketch.
+     *
+     * @throws IOException when the data are not a sketch's
+     */
+    void read(DataInput in) throws IOException {
+        n = in.readLong();
+        boolean kept = in.readBoolean();
+        if (n < 0 || kept && n > EXACT_LIMIT) {
+            throw new IOException("not a percentile sketch: " + n + " values" + (kept ? " kept exactly" : ""));
+        }
+        exact = kept ? new double[(int) Math.max(16, n)] : null;
+        for (int i = 0; kept && i < n; i++) {
+            exact[i] = in.readDouble();
+        }
+        int used = in.readInt();
+        for (int k = 0; k < used; k++) {
+            int b = in.readUnsignedShort();
+            int filled = in.readUnsignedShort();
+            if (b >= BINADES || filled > PER_BINADE || counts[b] != null) {
+                throw new IOException("not a percentile sketch: binade " + b + " with " + filled + " buckets");
+            }
+            counts[b] = new long[PER_BINADE];
+            largest[b] = new double[PER_BINADE];
+            for (int j = 0; j < filled; j++) {
+                int s = in.readUnsignedShort();
+                if (s >= PER_BINADE) {
+                    throw new IOException("not a percentile sketch: bucket " + s + " of " + PER_BINADE);
+                }
+                counts[b][s] = in.readLong();
+                largest[b][s] = in.readDouble();
+            }
+        }
     }
 
     /** @return the number of values added */

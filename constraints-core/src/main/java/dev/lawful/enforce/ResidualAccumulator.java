@@ -3,6 +3,9 @@ package dev.lawful.enforce;
 import dev.lawful.algebra.ExpandedLaws;
 import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawSet;
+import java.io.DataInput;
+import java.io.DataOutput;
+import java.io.IOException;
 import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.List;
@@ -33,8 +36,15 @@ import java.util.Objects;
  * <p>Memory: the work arrays of one block of {@value ResidualReport#CHUNK} samples, and per scalar law the exact
  * values (up to the limit above) and the buckets (one array of 1024 counts and maxima per binade the residuals
  * reach). Not thread-safe: give each thread its own and merge.
+ *
+ * <p><b>Between machines.</b> {@link #writeTo} writes the partial report (counts, sums, sketches and worst samples,
+ * not the law set) and {@link #readFrom} reads it back for the same law set, so partials can travel from the
+ * machines that built them to the one that merges them; a partial read back merges exactly like the original.
  */
 public final class ResidualAccumulator {
+    /** "LRA" and a version: the layout of {@link #writeTo}. */
+    private static final int FORMAT = 0x4C524101;
+
     private final LawSet set;
     private final LawEvaluator evaluator;
     private final LawEvaluator.Workspace workspace;
@@ -260,6 +270,85 @@ public final class ResidualAccumulator {
         }
         samples += other.samples;
         failing += other.failing;
+    }
+
+    /**
+     * Writes this partial report in a compact binary form, for {@link #readFrom} with the same law set: the
+     * tolerance, a fingerprint of the law set, and per scalar law the counts, histogram, worst sample and summaries
+     * (the percentile sketches write only the buckets they use). The accumulator is not modified.
+     *
+     * @param out where to write
+     * @throws IOException when {@code out} fails
+     */
+    public void writeTo(DataOutput out) throws IOException {
+        out.writeInt(FORMAT);
+        out.writeInt(fingerprint(set));
+        out.writeInt(lawCount);
+        out.writeDouble(tolerance);
+        out.writeLong(samples);
+        out.writeLong(failing);
+        for (int i = 0; i < lawCount; i++) {
+            out.writeLong(notANumber[i]);
+            out.writeLong(infinite[i]);
+            out.writeLong(over[i]);
+            out.writeLong(worst[i]);
+            out.writeLong(worstTag[i]);
+            out.writeDouble(worstRelative[i]);
+            out.writeBoolean(worstNonFinite[i]);
+            for (long count : histogram[i]) {
+                out.writeLong(count);
+            }
+            absolute[i].write(out);
+            relative[i].write(out);
+        }
+    }
+
+    /**
+     * Reads a partial report written by {@link #writeTo}: the result reports and merges exactly as the accumulator
+     * that wrote it, and can go on adding samples.
+     *
+     * @param laws the law set the writer had (equal, not necessarily the same object)
+     * @param in   where to read
+     * @return a new accumulator holding the partial report
+     * @throws IOException when {@code in} fails, or holds no partial report of this law set (a different law set, or
+     *                     another version of Lawful wrote it)
+     */
+    public static ResidualAccumulator readFrom(LawSet laws, DataInput in) throws IOException {
+        int format = in.readInt();
+        if (format != FORMAT) {
+            throw new IOException("not a partial residual report of this version of Lawful (format "
+                    + Integer.toHexString(format) + ", expected " + Integer.toHexString(FORMAT)
+                    + "); write and read it with the same version");
+        }
+        int print = in.readInt();
+        int count = in.readInt();
+        if (print != fingerprint(laws) || count != laws.evaluator().lawCount()) {
+            throw new IOException("the partial residual report was written for another law set (" + count
+                    + " scalar laws); read it with the law set that wrote it");
+        }
+        ResidualAccumulator a = new ResidualAccumulator(laws, in.readDouble());
+        a.samples = in.readLong();
+        a.failing = in.readLong();
+        for (int i = 0; i < count; i++) {
+            a.notANumber[i] = in.readLong();
+            a.infinite[i] = in.readLong();
+            a.over[i] = in.readLong();
+            a.worst[i] = in.readLong();
+            a.worstTag[i] = in.readLong();
+            a.worstRelative[i] = in.readDouble();
+            a.worstNonFinite[i] = in.readBoolean();
+            for (int b = 0; b < ResidualHistogram.BINS; b++) {
+                a.histogram[i][b] = in.readLong();
+            }
+            a.absolute[i].read(in);
+            a.relative[i].read(in);
+        }
+        return a;
+    }
+
+    /** A check that a partial is read with the law set that wrote it: the hash of the set's printed text. */
+    private static int fingerprint(LawSet laws) {
+        return laws.toString().hashCode();
     }
 
     /** @return the number of samples added so far */

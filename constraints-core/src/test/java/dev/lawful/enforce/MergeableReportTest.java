@@ -6,6 +6,11 @@ import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import dev.lawful.algebra.LawSet;
+import java.io.ByteArrayInputStream;
+import java.io.ByteArrayOutputStream;
+import java.io.DataInputStream;
+import java.io.DataOutputStream;
+import java.io.IOException;
 import java.math.BigDecimal;
 import java.math.MathContext;
 import java.util.ArrayList;
@@ -222,6 +227,62 @@ class MergeableReportTest {
             assertEquals(n <= PercentileSketch.EXACT_LIMIT, ResidualReport.of(JUNCTION, x, y, n, 1e-13)
                     .exactPercentile());
         }
+    }
+
+    @Test
+    void partialsWrittenAndReadBackMergeToTheReportOfTheWhole() throws IOException {
+        SplittableRandom r = new SplittableRandom(16);
+        for (int n : new int[] {700, 3 * PercentileSketch.EXACT_LIMIT}) {
+            double[] x = new double[2 * n];
+            double[] y = new double[3 * n];
+            for (int s = 0; s < n; s++) {
+                x[2 * s] = r.nextDouble();
+                x[2 * s + 1] = r.nextInt(50) == 0 ? Double.POSITIVE_INFINITY : r.nextDouble();
+                y[3 * s + 1] = r.nextDouble();
+                y[3 * s] = 2 * y[3 * s + 1] * (1 + 1e-12 * r.nextDouble() * r.nextInt(2));
+                y[3 * s + 2] = x[2 * s] + x[2 * s + 1] - 3 * y[3 * s + 1];
+                if (r.nextInt(300) == 0) {
+                    y[3 * s] = Double.NaN;
+                }
+            }
+            // the reference: the single-accumulator report over every sample, never written or read
+            String whole = ResidualReport.of(JUNCTION, x, y, n, 1e-13).toJson();
+            ResidualAccumulator merged = readBack(new ResidualAccumulator(JUNCTION, 1e-13));
+            for (int at = 0, part = 0; at < n; part++) {
+                int len = Math.min(n - at, 1 + r.nextInt(n / 3));
+                ResidualAccumulator p = new ResidualAccumulator(JUNCTION, 1e-13);
+                p.add(Arrays.copyOfRange(x, 2 * at, 2 * (at + len)), Arrays.copyOfRange(y, 3 * at, 3 * (at + len)),
+                        len, at, null);
+                ResidualAccumulator back = readBack(p);
+                assertEquals(p.report().toJson(), back.report().toJson(), "part " + part + " read back");
+                merged.merge(back);
+                merged = readBack(merged);
+                at += len;
+            }
+            assertEquals(whole, merged.report().toJson(), n + " samples");
+        }
+    }
+
+    @Test
+    void aPartialReadWithAnotherLawSetIsRefused() throws IOException {
+        ByteArrayOutputStream bytes = new ByteArrayOutputStream();
+        new ResidualAccumulator(JUNCTION, 0).writeTo(new DataOutputStream(bytes));
+        LawSet other = LawSet.parse("other.law", "output q[3]\nlaw volume: sum(q) = 1\nlaw split: q[0] = q[1]\n");
+        IOException e = assertThrows(IOException.class, () -> ResidualAccumulator.readFrom(other,
+                new DataInputStream(new ByteArrayInputStream(bytes.toByteArray()))));
+        assertEquals("the partial residual report was written for another law set (2 scalar laws); read it with the"
+                + " law set that wrote it", e.getMessage());
+        byte[] wrong = bytes.toByteArray();
+        wrong[3] ^= 1;
+        assertThrows(IOException.class, () -> ResidualAccumulator.readFrom(JUNCTION,
+                new DataInputStream(new ByteArrayInputStream(wrong))));
+    }
+
+    /** @return {@code a} written with {@link ResidualAccumulator#writeTo} and read back */
+    private static ResidualAccumulator readBack(ResidualAccumulator a) throws IOException {
+        ByteArrayOutputStream bytes = new ByteArrayOutputStream();
+        a.writeTo(new DataOutputStream(bytes));
+        return ResidualAccumulator.readFrom(JUNCTION, new DataInputStream(new ByteArrayInputStream(bytes.toByteArray())));
     }
 
     @Test

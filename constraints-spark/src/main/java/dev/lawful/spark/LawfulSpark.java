@@ -1,5 +1,6 @@
 package dev.lawful.spark;
 
+import dev.lawful.enforce.ResidualReport;
 import java.io.File;
 import java.io.IOException;
 import java.io.UncheckedIOException;
@@ -14,7 +15,9 @@ import java.util.jar.Attributes;
 import java.util.jar.JarFile;
 import java.util.jar.Manifest;
 import org.apache.spark.SparkConf;
+import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
+import org.deeplearning4j.nn.api.Model;
 import org.deeplearning4j.nn.graph.ComputationGraph;
 import org.deeplearning4j.nn.multilayer.MultiLayerNetwork;
 import org.deeplearning4j.spark.api.RDDTrainingApproach;
@@ -22,6 +25,8 @@ import org.deeplearning4j.spark.api.TrainingMaster;
 import org.deeplearning4j.spark.impl.graph.SparkComputationGraph;
 import org.deeplearning4j.spark.impl.multilayer.SparkDl4jMultiLayer;
 import org.deeplearning4j.spark.impl.paramavg.ParameterAveragingTrainingMaster;
+import org.nd4j.linalg.dataset.DataSet;
+import org.nd4j.linalg.dataset.api.preprocessor.DataNormalization;
 
 /**
  * What networks with Lawful's law layers and vertices need to train on Apache Spark with Deeplearning4j's Spark
@@ -34,6 +39,10 @@ import org.deeplearning4j.spark.impl.paramavg.ParameterAveragingTrainingMaster;
  * Deeplearning4j's {@code SharedTrainingMaster} (asynchronous gradient sharing); measured with Deeplearning4j
  * 1.0.0-M2 it hung in about one run of three on {@code local[2]} and trained nothing across executor JVMs on one
  * machine (every node took itself for the root), so {@link #multiLayer} and {@link #graph} refuse it.
+ *
+ * <p>{@link #verify}, {@link #verifyDataSets} and {@link #verifyPredictions} check laws over a data set held in
+ * Spark, a distributed {@code lawful verify}: the report equals the one {@link ResidualReport#of} gives on one
+ * machine over the same rows, bit for bit.
  *
  * <p>Spark 3.3 adds the {@code --add-opens} flags Java 17 needs to the executors' command line itself; the driver's
  * JVM must be started with {@link #DRIVER_JAVA_OPTIONS} (a JVM cannot open its own modules once running), which
@@ -144,6 +153,98 @@ public final class LawfulSpark {
      */
     public static SparkComputationGraph graph(JavaSparkContext sc, ComputationGraph net, TrainingMaster<?, ?> master) {
         return new CopyScoringGraph(sc, net, supported(master), false);
+    }
+
+    /**
+     * Checks every law on every row of a data set held in Spark and returns the residual report that
+     * {@code lawful verify} prints (table: {@link ResidualReport#toTable()}, JSON: {@link ResidualReport#toJson()}).
+     * The report is merged from one partial report per partition ({@link dev.lawful.enforce.ResidualAccumulator}),
+     * exactly: it has the same bits as {@link ResidualReport#of} over the same rows in the RDD's order on one
+     * machine, however the rows are partitioned, including the worst sample of each law (its index counts rows
+     * from 0 in the RDD's order) and the 99th percentile (exact nearest-rank up to
+     * {@value dev.lawful.enforce.PercentileSketch#EXACT_LIMIT} finite residuals per law, beyond that from
+     * log-spaced buckets, less than 2<sup>-10</sup> above; {@link ResidualReport#exactPercentile()} says which).
+     *
+     * <p>Cost: two passes over the RDD, one that counts each partition's rows (for the global row indices) and one
+     * that evaluates the laws; persist an RDD that is expensive to compute. Each executor parses the law text once
+     * per JVM; the partial reports sent to the driver hold counts, sums and the buckets used, not the rows.
+     *
+     * @param lawText   the law text (as in a law file)
+     * @param rows      one array per sample: the inputs, then the outputs, each in the law set's declared order
+     *                  ({@code LawSet.inputNames()}, {@code outputNames()}) and units; not modified
+     * @param tolerance the largest relative residual accepted, a finite number at least 0 ({@code lawful verify}
+     *                  uses 1e-9 by default; about 1e-6 suits outputs computed in float32)
+     * @return the report over every row
+     * @throws dev.lawful.algebra.LawException      when the law text has errors (on the driver, before any job)
+     * @throws IllegalArgumentException             when the tolerance is negative, infinite or NaN, or the RDD holds
+     *                                              more than {@link Integer#MAX_VALUE} rows
+     * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when a row is null or of the wrong
+     *                                              length: its message names the row and the layout expected
+     * @throws IllegalStateException                when the two passes over the RDD counted different rows
+     */
+    public static ResidualReport verify(String lawText, JavaRDD<double[]> rows, double tolerance) {
+        return DistributedCheck.verify("LawfulSpark.verify", lawText, rows, tolerance,
+                new DistributedCheck.ArrayRows());
+    }
+
+    /**
+     * Like {@link #verify} for Deeplearning4j data sets in physical units: each example's features are the law
+     * inputs and its labels the law outputs, in declared order (a data set may hold any number of examples). To
+     * check a trained network's predictions made on the executors, use {@link #verifyPredictions}. Float32 arrays
+     * are widened to double exactly. Row indices count examples from 0 in the RDD's order.
+     *
+     * @param lawText   the law text
+     * @param data      data sets of {@code n × inputWidth} features (ignored when the laws have no inputs) and
+     *                  {@code n × outputWidth} labels; not modified
+     * @param tolerance the largest relative residual accepted, a finite number at least 0
+     * @return the report over every example
+     * @throws dev.lawful.algebra.LawException      when the law text has errors
+     * @throws IllegalArgumentException             as {@link #verify} says
+     * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when a data set's arrays have another
+     *                                              shape: its message names the rows and the shape expected
+     * @throws IllegalStateException                when the two passes over the RDD counted different rows
+     */
+    public static ResidualReport verifyDataSets(String lawText, JavaRDD<DataSet> data, double tolerance) {
+        String where = "LawfulSpark.verifyDataSets";
+        return DistributedCheck.verify(where, lawText, data, tolerance, new DataSetRows(where, null));
+    }
+
+    /**
+     * Like {@link #verifyDataSets} with the law outputs predicted by a trained network on the executors: for each
+     * data set, the network's outputs for its features (normalised with {@code normalizer} first, and the outputs
+     * reverted to physical units, when one is given) are the law outputs, and the features themselves the law
+     * inputs. The network and normalizer reach the executors as serialized bytes ({@code ModelSerializer},
+     * {@code NormalizerSerializer}), broadcast for the check and removed after it; each partition restores its own
+     * copy. Its outputs must be the law set's outputs in declared order. The report equals the one
+     * {@link ResidualReport#of} gives over the same features and the network's outputs for the same data sets on
+     * one machine.
+     *
+     * @param lawText    the law text
+     * @param data       data sets of physical features, {@code n × inputWidth} when the laws have inputs (labels
+     *                   are ignored); not modified
+     * @param net        the trained network, a {@code ComputationGraph} with one output or a
+     *                   {@code MultiLayerNetwork} (not modified)
+     * @param normalizer the normalizer the network was trained with (features and labels), or null when it takes
+     *                   and gives physical values
+     * @param tolerance  the largest relative residual accepted, a finite number at least 0 (about 1e-6 for a
+     *                   float32 network)
+     * @return the report over every example
+     * @throws dev.lawful.algebra.LawException      when the law text has errors
+     * @throws IllegalArgumentException             as {@link #verify} says, or for another kind of network
+     * @throws org.apache.spark.SparkException      (thrown by Spark unchecked) when the features or predictions
+     *                                              have another shape: its message names the rows and the shape
+     * @throws IllegalStateException                when the two passes over the RDD counted different rows
+     */
+    public static ResidualReport verifyPredictions(String lawText, JavaRDD<DataSet> data, Model net,
+                                                   DataNormalization normalizer, double tolerance) {
+        String where = "LawfulSpark.verifyPredictions";
+        Predictor predictor = Predictor.broadcast(JavaSparkContext.fromSparkContext(data.context()), net,
+                normalizer, where);
+        try {
+            return DistributedCheck.verify(where, lawText, data, tolerance, new DataSetRows(where, predictor));
+        } finally {
+            predictor.destroy();
+        }
     }
 
     private static TrainingMaster<?, ?> supported(TrainingMaster<?, ?> master) {

@@ -6,8 +6,6 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import java.io.File;
 import java.io.IOException;
-import java.nio.charset.StandardCharsets;
-import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.Random;
 
@@ -16,8 +14,6 @@ import dev.lawful.dl4j.LawSpec;
 import dev.lawful.dl4j.LawVertex;
 import dev.lawful.enforce.ResidualReport;
 import org.apache.spark.SparkConf;
-import org.apache.spark.SparkContext;
-import org.apache.spark.SparkContext$;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
 import org.deeplearning4j.nn.graph.ComputationGraph;
@@ -38,9 +34,6 @@ import org.nd4j.linalg.factory.Nd4j;
  * the completion's documented float bound in physical units.
  */
 class ReadmeClusterExampleTest {
-    private static final String START = "// cluster-example:start\n";
-    private static final String END = "            // cluster-example:end";
-
     @Test
     void theClusterExampleTrainsSavesAndReloadsAConstrainedNetwork(@TempDir Path temp) throws Exception {
         File folder = temp.toFile();
@@ -122,35 +115,12 @@ class ReadmeClusterExampleTest {
             double[] seen = vertex.getInputScaling().toPhysical(SparkTests.flat(data.getFeatures()), rows);
             SparkTests.assertWithinDocumentedBound(vertex.lawCompletion(), seen, vertex.getOutputScaling(), again);
         } finally {
-            // a failure inside the example leaves its context running, which no later test could then replace
-            scala.Option<SparkContext> active = SparkContext$.MODULE$.getActive();
-            if (active.isDefined()) {
-                active.get().stop();
-            }
+            SparkTests.stopActiveContext();
         }
     }
 
     @Test
     void theReadmeShowsExactlyThisCode() throws IOException {
-        String test = Files.readString(Path.of("src/test/java/dev/lawful/spark/ReadmeClusterExampleTest.java"),
-                StandardCharsets.UTF_8);
-        String readme = Files.readString(Path.of("../README.md"), StandardCharsets.UTF_8);
-        int start = test.indexOf(START) + START.length();
-        String region = test.substring(start, test.indexOf(END, start));
-        StringBuilder code = new StringBuilder();
-        for (String line : region.split("\n", -1)) {
-            code.append(line.startsWith("            ") ? line.substring(12) : line).append('\n');
-        }
-        assertTrue(readme.contains(code.toString().stripTrailing() + "\n"), "README.md must contain the cluster"
-                + " example exactly as this test runs it; copy the region between this test's cluster-example markers"
-                + " into the README's code block");
-        int imports = readme.indexOf("// the cluster example's imports");
-        assertTrue(imports > 0, "README.md must list the cluster example's imports");
-        // the test lives in dev.lawful.spark, so it needs no imports from that package
-        for (String line : readme.substring(imports, readme.indexOf("```", imports)).split("\n")) {
-            if (line.startsWith("import ") && !line.startsWith("import dev.lawful.spark.")) {
-                assertTrue(test.contains("\n" + line + "\n"), "README import not used by the test: " + line);
-            }
-        }
+        ReadmeCode.assertShown("ReadmeClusterExampleTest", "cluster-example", "// the cluster example's imports");
     }
 }

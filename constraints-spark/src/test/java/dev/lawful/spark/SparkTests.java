@@ -9,6 +9,8 @@ import dev.lawful.enforce.RoundingBound;
 import java.util.ArrayList;
 import java.util.List;
 import org.apache.spark.SparkConf;
+import org.apache.spark.SparkContext;
+import org.apache.spark.SparkContext$;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
 import org.nd4j.linalg.api.buffer.DataType;
@@ -41,6 +43,17 @@ final class SparkTests {
                     .set("spark.executorEnv.SPARK_SCALA_VERSION", "2.12");
         }
         return conf;
+    }
+
+    /**
+     * Stops the context a README example started, if it is still running: a failure inside the example leaves it
+     * running, and no later test could then start its own.
+     */
+    static void stopActiveContext() {
+        scala.Option<SparkContext> active = SparkContext$.MODULE$.getActive();
+        if (active.isDefined()) {
+            active.get().stop();
+        }
     }
 
     /**
