@@ -132,25 +132,26 @@ public final class PercentileSketch {
             }
         }
         int used = 0;
-        for (long[] c : counts) {
+        for (long[] c : buckets) {
             used += c == null ? 0 : 1;
         }
         out.writeInt(used);
         for (int b = 0; b < BINADES; b++) {
-            if (counts[b] == null) {
+            long[] mine = buckets[b];
+            if (mine == null) {
                 continue;
             }
             int filled = 0;
-            for (long c : counts[b]) {
-                filled += c == 0 ? 0 : 1;
+            for (int s = 0; s < PER_BINADE; s++) {
+                filled += mine[2 * s] == 0 ? 0 : 1;
             }
             out.writeShort(b);
             out.writeShort(filled);
             for (int s = 0; s < PER_BINADE; s++) {
-                if (counts[b][s] != 0) {
+                if (mine[2 * s] != 0) {
                     out.writeShort(s);
-                    out.writeLong(counts[b][s]);
-                    out.writeDouble(largest[b][s]);
+                    out.writeLong(mine[2 * s]);
+                    out.writeDouble(Double.longBitsToDouble(mine[2 * s + 1]));
                 }
             }
         }
@@ -175,18 +176,18 @@ public final class PercentileSketch {
         for (int k = 0; k < used; k++) {
             int b = in.readUnsignedShort();
             int filled = in.readUnsignedShort();
-            if (b >= BINADES || filled > PER_BINADE || counts[b] != null) {
+            if (b >= BINADES || filled > PER_BINADE || buckets[b] != null) {
                 throw new IOException("not a percentile sketch: binade " + b + " with " + filled + " buckets");
             }
-            counts[b] = new long[PER_BINADE];
-            largest[b] = new double[PER_BINADE];
+            long[] mine = new long[2 * PER_BINADE];
+            buckets[b] = mine;
             for (int j = 0; j < filled; j++) {
                 int s = in.readUnsignedShort();
                 if (s >= PER_BINADE) {
                     throw new IOException("not a percentile sketch: bucket " + s + " of " + PER_BINADE);
                 }
-                counts[b][s] = in.readLong();
-                largest[b][s] = in.readDouble();
+                mine[2 * s] = in.readLong();
+                mine[2 * s + 1] = Double.doubleToRawLongBits(in.readDouble());
             }
         }
     }
