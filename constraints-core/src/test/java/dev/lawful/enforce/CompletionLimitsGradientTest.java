@@ -19,21 +19,6 @@ import org.junit.jupiter.api.Test;
  * agree, i.e. away from a switch between active sets, where the map is not differentiable.
  */
 class CompletionLimitsGradientTest {
-    /** Element balances of a steam reformer's outlet, with non-negative outlet flows (constant-affine tier). */
-    private static final String REFORMER = String.join("\n",
-            "input  feed[6] mol/s",
-            "output out[6]  mol/s",
-            "const C = [1, 0, 1, 1, 0, 0]",
-            "const H = [4, 2, 0, 0, 2, 0]",
-            "const O = [0, 1, 1, 2, 0, 0]",
-            "const N = [0, 0, 0, 0, 0, 2]",
-            "law carbon:   dot(C, out) = dot(C, feed)",
-            "law hydrogen: dot(H, out) = dot(H, feed)",
-            "law oxygen:   dot(O, out) = dot(O, feed)",
-            "law nitrogen: dot(N, out) = dot(N, feed)",
-            "complete out[2], out[4], out[1], out[5]",
-            "limit flows:  out >= 0",
-            "");
 
     /**
      * A two-layer column: precipitation closes the water budget, each layer's humidity after one step of length dt
@@ -57,40 +42,16 @@ class CompletionLimitsGradientTest {
 
     @Test
     void nonNegativeOutletFlowsHaveTheGradientOfTheForwardMapInFreeOutputsAndInputs() {
-        Completion c = Completion.of(LawSet.parse("<reformer>", REFORMER));
-        SplittableRandom r = new SplittableRandom(3);
-        int compared = 0;
-        for (int trial = 0; trial < 200 && compared < 40; trial++) {
-            double[] feed = new double[6];
-            for (int i = 0; i < 6; i++) {
-                feed[i] = 0.05 + r.nextDouble();
-            }
-            double[] z = {r.nextDouble() * 2, r.nextDouble() * 2};
-            if (compare(c, feed, z, true)) {
-                compared++;
-            }
-        }
-        assertTrue(compared >= 40, "only " + compared + " samples on a limit away from a switch");
+        Completion c = Completion.of(LawSet.parse("<reformer>", LimitLaws.REFORMER));
+        assertTrue(comparedReformers(c, 3, 200) >= 40, "too few samples on a limit away from a switch");
     }
 
     @Test
     void outputsOfUnequalSizesKeepTheGradientOfTheForwardMap() {
         // the metric Σ ((y* − y)/size)² with sizes far from one another, as a folded normalizer gives
-        Completion c = Completion.builder(LawSet.parse("<reformer>", REFORMER))
+        Completion c = Completion.builder(LawSet.parse("<reformer>", LimitLaws.REFORMER))
                 .limitScales(0.3, 2, 1, 0.05, 4, 1).build();
-        SplittableRandom r = new SplittableRandom(4);
-        int compared = 0;
-        for (int trial = 0; trial < 400 && compared < 40; trial++) {
-            double[] feed = new double[6];
-            for (int i = 0; i < 6; i++) {
-                feed[i] = 0.05 + r.nextDouble();
-            }
-            double[] z = {r.nextDouble() * 2, r.nextDouble() * 2};
-            if (compare(c, feed, z, true)) {
-                compared++;
-            }
-        }
-        assertTrue(compared >= 40, "only " + compared + " samples on a limit away from a switch");
+        assertTrue(comparedReformers(c, 4, 400) >= 40, "too few samples on a limit away from a switch");
         Completion column = Completion.builder(LawSet.parse("<column>", column(false)))
                 .limitScales(1e-6, 3e-6, 1e-4).build();
         assertEquals(20, comparedColumns(column, 4, true));
@@ -110,6 +71,21 @@ class CompletionLimitsGradientTest {
         // the input gradient leaves out the change of the metric and the limits' rows with the mass (documented);
         // the free outputs' gradient is exact
         assertEquals(20, comparedColumns(c, 5, false));
+    }
+
+    /** @return how many random reformer samples (up to 40, of {@code trials}) on a limit away from a switch were compared */
+    private static int comparedReformers(Completion c, long seed, int trials) {
+        SplittableRandom r = new SplittableRandom(seed);
+        int compared = 0;
+        for (int trial = 0; trial < trials && compared < 40; trial++) {
+            double[] feed = new double[6];
+            for (int i = 0; i < 6; i++) {
+                feed[i] = 0.05 + r.nextDouble();
+            }
+            double[] z = {r.nextDouble() * 2, r.nextDouble() * 2};
+            compared += compare(c, feed, z, true) ? 1 : 0;
+        }
+        return compared;
     }
 
     /** @return how many of 20 column samples on a limit (and away from a switch) were compared */

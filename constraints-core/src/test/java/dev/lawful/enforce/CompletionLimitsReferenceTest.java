@@ -30,20 +30,6 @@ class CompletionLimitsReferenceTest {
         System.setProperty("shut.up.ojAlgo", "true");
     }
 
-    private static final String REFORMER = String.join("\n",
-            "input  feed[6] mol/s",
-            "output out[6]  mol/s",
-            "const C = [1, 0, 1, 1, 0, 0]",
-            "const H = [4, 2, 0, 0, 2, 0]",
-            "const O = [0, 1, 1, 2, 0, 0]",
-            "const N = [0, 0, 0, 0, 0, 2]",
-            "law carbon:   dot(C, out) = dot(C, feed)",
-            "law hydrogen: dot(H, out) = dot(H, feed)",
-            "law oxygen:   dot(O, out) = dot(O, feed)",
-            "law nitrogen: dot(N, out) = dot(N, feed)",
-            "complete out[2], out[4], out[1], out[5]",
-            "limit flows:  out >= 0",
-            "");
 
     /** Water budget of three layers with input-dependent masses (affine tier), rain and drying limits. */
     private static final String BUDGET = String.join("\n",
@@ -63,7 +49,7 @@ class CompletionLimitsReferenceTest {
     void nonNegativeOutletFlowsAreTheNearestPointAndSatisfyKkt() {
         SplittableRandom r = new SplittableRandom(21);
         double[] sizes = {0.5, 2, 1, 0.8, 3, 1};
-        Completion c = Completion.builder(LawSet.parse("<reformer>", REFORMER)).limitScales(sizes).build();
+        Completion c = Completion.builder(LawSet.parse("<reformer>", LimitLaws.REFORMER)).limitScales(sizes).build();
         assertEquals(Tier.CONSTANT_AFFINE, c.tier());
         int moved = 0;
         for (int trial = 0; trial < 150; trial++) {

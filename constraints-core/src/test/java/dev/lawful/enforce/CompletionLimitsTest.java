@@ -136,29 +136,14 @@ class CompletionLimitsTest {
         assertArrayEquals(new double[] {-1, -1}, gz, 0.0);
     }
 
-    /** Element balances of a steam reformer's outlet (atom counts of CH4, H2O, CO, CO2, H2, N2). */
-    private static final String REFORMER = String.join("\n",
-            "input  feed[6] mol/s",
-            "output out[6]  mol/s",
-            "const C = [1, 0, 1, 1, 0, 0]",
-            "const H = [4, 2, 0, 0, 2, 0]",
-            "const O = [0, 1, 1, 2, 0, 0]",
-            "const N = [0, 0, 0, 0, 0, 2]",
-            "law carbon:   dot(C, out) = dot(C, feed)",
-            "law hydrogen: dot(H, out) = dot(H, feed)",
-            "law oxygen:   dot(O, out) = dot(O, feed)",
-            "law nitrogen: dot(N, out) = dot(N, feed)",
-            "complete out[2], out[4], out[1], out[5]",
-            "limit flows:  out >= 0",
-            "");
     private static final double[][] ATOMS = {
         {1, 0, 1, 1, 0, 0}, {4, 2, 0, 0, 2, 0}, {0, 1, 1, 2, 0, 0}, {0, 0, 0, 0, 0, 2}};
 
     @Test
     void nonNegativeOutletFlowsAgreeWithAnIndependentQuadraticProgrammingSolver() {
-        LawSet laws = LawSet.parse("<reformer>", REFORMER);
+        LawSet laws = LawSet.parse("<reformer>", LimitLaws.REFORMER);
         Completion limited = Completion.of(laws);
-        Completion plain = Completion.of(LawSet.parse("<reformer>", REFORMER.replace("limit flows:  out >= 0", "")));
+        Completion plain = Completion.of(LawSet.parse("<reformer>", LimitLaws.REFORMER.replace("limit flows:  out >= 0", "")));
         SplittableRandom r = new SplittableRandom(11);
         int moved = 0;
         for (int trial = 0; trial < 200; trial++) {
@@ -248,7 +233,7 @@ class CompletionLimitsTest {
 
     @Test
     void sixteenThreadsGiveTheBitsOfOne() throws InterruptedException {
-        Completion c = Completion.of(LawSet.parse("<reformer>", REFORMER));
+        Completion c = Completion.of(LawSet.parse("<reformer>", LimitLaws.REFORMER));
         SplittableRandom r = new SplittableRandom(5);
         int batch = 64;
         double[] feed = new double[6 * batch];

@@ -64,11 +64,7 @@ final class ImplicitGradient {
             for (int k = 0; k < n; k++) {
                 lambda[k] = g[s * nOut + completed[k]];
             }
-            if (constant != null) {
-                DenseLu.solveTransposed(constant.wholeLu(), n, constant.wholePivot(), lambda, 0);
-            } else {
-                DenseLu.solveTransposed(w.lu, n, w.pivots, lambda, 0, s * n * n, s * n);
-            }
+            solveWholeTransposed(s, w, lambda);
             applyLambda(s, g, gz, gx, lambda, w);
         }
         return -1;

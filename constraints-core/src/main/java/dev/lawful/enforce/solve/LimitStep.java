@@ -170,7 +170,7 @@ public final class LimitStep {
         for (int f = 0; f < k; f++) {
             zs[f] = ys[free[f]];
         }
-        if (settlesOnLimits(s)) {
+        if (settlesOnLimits(g, gScale, s * m)) {
             System.arraycopy(ys, 0, full, s * p, p);
             return SampleStatus.OK;
         }
@@ -193,10 +193,7 @@ public final class LimitStep {
             }
             System.arraycopy(us, 0, zs, 0, k);
             lin.values(xs, ys);
-            if (snapCompleted() && !lawsHold()) {
-                return SampleStatus.NOT_CONVERGED;
-            }
-            if (inside(ys, 0, lin.g, lin.gScale, 0)) {
+            if (inside(ys, 0, lin.g, lin.gScale, 0) || settlesOnLimits(lin.g, lin.gScale, 0)) {
                 System.arraycopy(ys, 0, full, s * p, p);
                 return SampleStatus.OK;
             }
@@ -247,13 +244,15 @@ public final class LimitStep {
      * free outputs and sits exactly on its limits. A truth row with no rain then completes to no rain, not to a
      * margin above it.
      *
+     * @param values the current row's limit values (read only for limits on expressions), from {@code go}
+     * @param scales their natural scales
      * @return whether the current row was settled (ys then holds it); otherwise ys is unchanged
      */
-    private boolean settlesOnLimits(int s) {
+    private boolean settlesOnLimits(double[] values, double[] scales, int go) {
         boolean changed = false;
         for (int j = 0; j < m; j++) {
             int o = single[j];
-            boolean expressionOutside = o < 0 && !(g[s * m + j] >= -3 * EPS * gScale[s * m + j]);
+            boolean expressionOutside = o < 0 && !(values[go + j] >= -3 * EPS * scales[go + j]);
             if (expressionOutside || (o >= 0 && wrongSide(j, ys[o]) && role[o] < 0)) {
                 return false;
             }
@@ -271,20 +270,6 @@ public final class LimitStep {
         }
         System.arraycopy(backup, 0, ys, 0, p);
         return false;
-    }
-
-    /** @return whether a completed output was set to its limit (it was within rounding on the wrong side) */
-    private boolean snapCompleted() {
-        boolean snapped = false;
-        for (int j = 0; j < m; j++) {
-            int o = single[j];
-            if (o >= 0 && wrongSide(j, ys[o]) && Math.abs(ys[o] - bound[j])
-                    <= 16 * EPS * (Math.abs(ys[o]) + Math.abs(bound[j]))) {
-                ys[o] = bound[j];
-                snapped = true;
-            }
-        }
-        return snapped;
     }
 
     private boolean wrongSide(int j, double y) {
