@@ -24,6 +24,24 @@ final class MagnitudeStats {
         sketch.add(v);
     }
 
+    /**
+     * Adds {@code v[from .. from + count)}, as {@link #add} one by one would.
+     *
+     * @param v magnitudes ≥ 0 or positive infinity; not modified
+     */
+    void addAll(double[] v, int from, int count) {
+        if (count == 0) {
+            return;
+        }
+        double m = sketch.count() == 0 ? v[from] : max;
+        for (int k = from; k < from + count; k++) {
+            m = v[k] > m ? v[k] : m;
+        }
+        max = m;
+        sum.addAll(v, from, count);
+        sketch.addAll(v, from, count);
+    }
+
     void merge(MagnitudeStats other) {
         if (other.sketch.count() == 0) {
             return;

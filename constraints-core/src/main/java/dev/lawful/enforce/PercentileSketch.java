@@ -4,6 +4,7 @@ import java.io.DataInput;
 import java.io.DataOutput;
 import java.io.IOException;
 import java.util.Arrays;
+import java.util.Objects;
 
 /**
  * A mergeable, deterministic percentile of non-negative doubles in bounded memory: exact (the nearest-rank value,
@@ -58,21 +59,66 @@ public final class PercentileSketch {
         if (!(v >= 0)) {
             throw new IllegalArgumentException("PercentileSketch adds values >= 0, found " + v);
         }
-        long key = Double.doubleToRawLongBits(v) >>> (52 - SUB_BITS);
-        int binade = (int) (key >>> SUB_BITS);
+        // the sign bit cleared: -0.0 is zero
+        long bits = Double.doubleToRawLongBits(v) & Long.MAX_VALUE;
+        long key = bits >>> (52 - SUB_BITS);
+        long[] b = binade((int) (key >>> SUB_BITS));
         int sub = (int) (key & (PER_BINADE - 1));
+        b[2 * sub]++;
+        if (bits > b[2 * sub + 1]) {
+            b[2 * sub + 1] = bits;
+        }
+        keep(Math.abs(v));
+        n++;
+    }
+
+    /**
+     * Adds {@code v[from .. from + count)}, as {@link #add} one by one would.
+     *
+     * @param v     values ≥ 0 or positive infinity; not modified
+     * @param from  the first index
+     * @param count how many values
+     * @throws IllegalArgumentException when a value is negative or NaN (the values before it are added)
+     */
+    public void addAll(double[] v, int from, int count) {
+        Objects.checkFromIndexSize(from, count, v.length);
+        int k = from;
+        int end = from + count;
+        for (; k < end && exact != null; k++) {
+            add(v[k]);
+        }
+        if (k == end) {
+            return;
+        }
+        long added = 0;
+        try {
+            for (; k < end; k++) {
+                double x = v[k];
+                if (!(x >= 0)) {
+                    throw new IllegalArgumentException("PercentileSketch adds values >= 0, found " + x + " at index "
+                            + k);
+                }
+                long bits = Double.doubleToRawLongBits(x) & Long.MAX_VALUE;
+                long key = bits >>> (52 - SUB_BITS);
+                long[] b = binade((int) (key >>> SUB_BITS));
+                int at = 2 * (int) (key & (PER_BINADE - 1));
+                b[at]++;
+                b[at + 1] = Math.max(b[at + 1], bits);
+                added++;
+            }
+        } finally {
+            n += added;
+        }
+    }
+
+    /** @return the buckets of a binade, allocated on first use */
+    private long[] binade(int binade) {
         long[] b = buckets[binade];
         if (b == null) {
             b = new long[2 * PER_BINADE];
             buckets[binade] = b;
         }
-        b[2 * sub]++;
-        long bits = Double.doubleToRawLongBits(v);
-        if (bits > b[2 * sub + 1]) {
-            b[2 * sub + 1] = bits;
-        }
-        keep(v);
-        n++;
+        return b;
     }
 
     private void keep(double v) {

@@ -57,6 +57,9 @@ public final class ResidualAccumulator {
     private final double[] y;
     private final double[] residual;
     private final double[] scale;
+    private final double[] absoluteOf;
+    private final double[] relativeOf;
+    private final int[] finiteCount;
     private final MagnitudeStats[] absolute;
     private final MagnitudeStats[] relative;
     private final long[] notANumber;
@@ -102,6 +105,9 @@ public final class ResidualAccumulator {
         this.y = new double[chunk * outputWidth];
         this.residual = new double[chunk * lawCount];
         this.scale = new double[chunk * lawCount];
+        this.absoluteOf = new double[chunk * lawCount];
+        this.relativeOf = new double[chunk * lawCount];
+        this.finiteCount = new int[lawCount];
         this.notANumber = new long[lawCount];
         this.infinite = new long[lawCount];
         this.over = new long[lawCount];
@@ -187,6 +193,9 @@ public final class ResidualAccumulator {
     /** Adds the {@code n} samples in the work arrays: indices {@code first ..}, tags from {@code tags[tagAt ..]}. */
     private void block(int n, long first, long[] tags, int tagAt) {
         evaluator.residuals(x, y, n, residual, scale, workspace);
+        // the finite magnitudes of law i go to absoluteOf/relativeOf[i * CHUNK ..] and are added law by law below:
+        // a statistic's loop over one array keeps its running state in registers
+        Arrays.fill(finiteCount, 0);
         for (int s = 0; s < n; s++) {
             long sample = first + s;
             long tag = tags == null ? -1 : tags[tagAt + s];
@@ -208,18 +217,25 @@ public final class ResidualAccumulator {
                 double magnitude = Math.abs(r);
                 double sc = scale[row + i];
                 double rel = sc == 0 ? (magnitude == 0 ? 0 : Double.POSITIVE_INFINITY) : magnitude / sc;
-                absolute[i].add(magnitude / factor[i]);
-                relative[i].add(rel);
+                int at = i * ResidualReport.CHUNK + finiteCount[i]++;
+                absoluteOf[at] = magnitude / factor[i];
+                relativeOf[at] = rel;
                 histogram[i][ResidualHistogram.bin(rel)]++;
                 if (!(rel <= tolerance)) {
                     over[i]++;
                     failed = true;
                 }
-                worse(i, false, rel, sample, tag);
+                if (rel >= worstRelative[i]) {
+                    worse(i, false, rel, sample, tag);
+                }
             }
             if (failed) {
                 failing++;
             }
+        }
+        for (int i = 0; i < lawCount; i++) {
+            absolute[i].addAll(absoluteOf, i * ResidualReport.CHUNK, finiteCount[i]);
+            relative[i].addAll(relativeOf, i * ResidualReport.CHUNK, finiteCount[i]);
         }
         samples += n;
     }

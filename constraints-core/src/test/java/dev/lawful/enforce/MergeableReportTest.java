@@ -12,6 +12,7 @@ import java.io.DataInputStream;
 import java.io.DataOutputStream;
 import java.io.IOException;
 import java.math.BigDecimal;
+import java.math.BigInteger;
 import java.math.MathContext;
 import java.util.ArrayList;
 import java.util.Arrays;
@@ -66,6 +67,39 @@ class MergeableReportTest {
             double reference = exact.divide(BigDecimal.valueOf(v.length), new MathContext(60)).doubleValue();
             assertEquals(reference, sum.mean(v.length), 0.0, "trial " + trial);
         }
+    }
+
+    @Test
+    void valuesAddedInBulkSumExactlyAsOneByOne() {
+        SplittableRandom r = new SplittableRandom(14);
+        for (int trial = 0; trial < 20; trial++) {
+            double[] v = magnitudes(r, 1 + r.nextInt(6000));
+            v[r.nextInt(v.length)] = -0.0;
+            ExactSum sum = new ExactSum();
+            BigDecimal exact = BigDecimal.ZERO;
+            for (int at = 0; at < v.length; ) {
+                int len = Math.min(v.length - at, r.nextInt(3000));
+                if (r.nextBoolean()) {
+                    sum.addAll(v, at, len);
+                } else {
+                    for (int i = at; i < at + len; i++) {
+                        sum.add(v[i]);
+                    }
+                }
+                for (int i = at; i < at + len; i++) {
+                    exact = exact.add(new BigDecimal(v[i]));
+                }
+                at += len;
+            }
+            // Source: java.math.BigDecimal, exact for these additions (its class documentation)
+            assertEquals(0, exact.compareTo(new BigDecimal(sum.units()).multiply(new BigDecimal(Double.MIN_VALUE))),
+                    "trial " + trial);
+        }
+        ExactSum bad = new ExactSum();
+        IllegalArgumentException e = assertThrows(IllegalArgumentException.class,
+                () -> bad.addAll(new double[] {1, 2, -3}, 0, 3));
+        assertEquals("ExactSum adds values >= 0, found -3.0 at index 2", e.getMessage());
+        assertEquals(BigInteger.valueOf(3).shiftLeft(1074), bad.units(), "the values before the bad one are added");
     }
 
     @Test
@@ -124,6 +158,35 @@ class MergeableReportTest {
     }
 
     // ---- PercentileSketch ----------------------------------------------------------------------------------
+
+    @Test
+    void valuesAddedToTheSketchInBulkGiveItsPercentilesOneByOne() {
+        SplittableRandom r = new SplittableRandom(15);
+        for (int n : new int[] {10, PercentileSketch.EXACT_LIMIT + 5, 40_000}) {
+            double[] v = magnitudes(r, n);
+            v[0] = -0.0;
+            PercentileSketch one = new PercentileSketch();
+            PercentileSketch bulk = new PercentileSketch();
+            for (double d : v) {
+                one.add(d);
+            }
+            for (int at = 0; at < n; ) {
+                int len = Math.min(n - at, r.nextInt(5000));
+                bulk.addAll(v, at, len);
+                at += len;
+            }
+            assertEquals(one.count(), bulk.count());
+            assertEquals(one.isExact(), bulk.isExact());
+            for (double p : new double[] {0, 1, 50, 99, 100}) {
+                assertEquals(Double.doubleToRawLongBits(one.percentile(p)), Double.doubleToRawLongBits(bulk.percentile(p)),
+                        n + " values, p" + p);
+            }
+            if (one.isExact()) {
+                // -0.0 is kept as zero, the smallest value (no value here is below zero)
+                assertEquals(Double.doubleToRawLongBits(0.0), Double.doubleToRawLongBits(one.percentile(0)));
+            }
+        }
+    }
 
     @Test
     void theSketchIsExactUpToItsLimitAndWithinItsBoundBeyond() {

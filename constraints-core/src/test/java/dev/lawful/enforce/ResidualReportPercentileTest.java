@@ -96,6 +96,32 @@ class ResidualReportPercentileTest {
     }
 
     @Test
+    void histogramBinOfEveryBinadeAndRandomValuesMatchesTheDecimalEdges() {
+        // Source: the same specification of the bins, applied directly: the bin of v > 0 is 1 + the number of
+        // decimal edges 1e-16, 1e-15 ... 1 (each the double of its literal) that lie below v
+        SplittableRandom random = new SplittableRandom(7);
+        for (int e = -70; e <= 3; e++) {
+            double p = Math.scalb(1.0, e);
+            for (double v : new double[] {p, Math.nextDown(p), Math.nextUp(p),
+                Math.scalb(1.0 + random.nextDouble(), e)}) {
+                assertEquals(byDefinition(v), ResidualHistogram.bin(v), "bin of " + v);
+            }
+        }
+        for (int i = 0; i < 100_000; i++) {
+            double v = Math.pow(10, -18 + 19 * random.nextDouble());
+            assertEquals(byDefinition(v), ResidualHistogram.bin(v), "bin of " + v);
+        }
+    }
+
+    private static int byDefinition(double v) {
+        int bin = 1;
+        for (int k = -16; k <= 0; k++) {
+            bin += Double.parseDouble("1e" + k) < v ? 1 : 0;
+        }
+        return bin;
+    }
+
+    @Test
     void histogramBinsAreClosedAboveAtThePowersOfTen() {
         // Source: the bins specified for the residual report, [0], (0, 1e-16], (1e-16, 1e-15] ... (0.1, 1], > 1,
         // each edge the double of the decimal literal
@@ -108,7 +134,7 @@ class ResidualReportPercentileTest {
             int bin = k + 17;
             assertEquals(edge, ResidualHistogram.upperEdge(bin));
             assertEquals(bin, ResidualHistogram.bin(edge), "1e" + k);
-            assertEquals(bin, ResidualHistogram.bin(Math.nextDown(edge)) + (k == -16 ? 0 : 0), "below 1e" + k);
+            assertEquals(bin, ResidualHistogram.bin(Math.nextDown(edge)), "below 1e" + k);
             assertEquals(bin + 1, ResidualHistogram.bin(Math.nextUp(edge)), "above 1e" + k);
         }
         assertEquals(2, ResidualHistogram.bin(1.5e-16));

@@ -1,5 +1,8 @@
 package dev.lawful.cli;
 
+import java.lang.invoke.MethodHandles;
+import java.lang.invoke.VarHandle;
+import java.nio.ByteOrder;
 import java.util.Arrays;
 
 /**
@@ -8,6 +11,10 @@ import java.util.Arrays;
  * are ASCII; a header goes through {@link dev.lawful.io.CsvWriter}).
  */
 final class Ascii {
+    /** Writes a double's 8 bytes at once (its raw bits: a NaN keeps its payload), whatever the platform's order. */
+    private static final VarHandle LITTLE_ENDIAN_DOUBLE =
+            MethodHandles.byteArrayViewVarHandle(double[].class, ByteOrder.LITTLE_ENDIAN);
+
     private byte[] bytes;
     private int length;
 
@@ -74,11 +81,26 @@ final class Ascii {
     /** @return this buffer, with the 8 bytes of {@code v} appended in little-endian order (a .npy float64) */
     Ascii appendLittleEndian(double v) {
         room(8);
-        long bits = Double.doubleToRawLongBits(v);
-        for (int i = 0; i < 8; i++) {
-            bytes[length++] = (byte) (bits >>> (8 * i));
-        }
+        LITTLE_ENDIAN_DOUBLE.set(bytes, length, v);
+        length += 8;
         return this;
+    }
+
+    /**
+     * Reserves room for {@code count} more float64 values, so that {@link #putLittleEndian} may follow without a
+     * check per value.
+     *
+     * @return this buffer
+     */
+    Ascii reserveDoubles(int count) {
+        room(count * 8);
+        return this;
+    }
+
+    /** Appends {@code v}'s 8 bytes in little-endian order into room made by {@link #reserveDoubles}. */
+    void putLittleEndian(double v) {
+        LITTLE_ENDIAN_DOUBLE.set(bytes, length, v);
+        length += 8;
     }
 
     @Override

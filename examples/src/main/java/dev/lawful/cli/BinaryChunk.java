@@ -15,7 +15,7 @@ final class BinaryChunk implements RowSource.Chunk {
     /**
      * One group of columns.
      *
-     * @param bytes     the raw values, {@code rows × width × itemSize}
+     * @param bytes     the raw values, {@code rows × width × itemSize} of them (the array may be longer)
      * @param column    the group's first column in the file's column list
      * @param width     the number of columns in the group
      * @param itemSize  4 (float32) or 8 (float64)
@@ -26,16 +26,19 @@ final class BinaryChunk implements RowSource.Chunk {
 
     private static final int NOTES = 3;
 
+    private final BinarySource source;
     private final long firstRow;
     private final int rows;
     private final List<Part> parts;
 
     /**
+     * @param source   the source the parts' arrays go back to once parsed ({@link BinarySource#release})
      * @param firstRow the 0-based index of the chunk's first row
      * @param rows     the rows in the chunk
      * @param parts    the column groups
      */
-    BinaryChunk(long firstRow, int rows, List<Part> parts) {
+    BinaryChunk(BinarySource source, long firstRow, int rows, List<Part> parts) {
+        this.source = source;
         this.firstRow = firstRow;
         this.rows = rows;
         this.parts = parts;
@@ -45,12 +48,12 @@ final class BinaryChunk implements RowSource.Chunk {
     public long bytes() {
         long n = 0;
         for (Part p : parts) {
-            n += p.bytes().length;
+            n += (long) rows * p.width() * p.itemSize();
         }
         return n;
     }
 
-    /** Rows are tagged with their 1-based row number. */
+    /** Rows are tagged with their 1-based row number. The parts' arrays go back to the source: parse once. */
     @Override
     public RowSource.Rows parse(int[] columnOf, List<String> names) {
         int k = columnOf.length;
@@ -81,6 +84,7 @@ final class BinaryChunk implements RowSource.Chunk {
                     }
                 }
             }
+            source.release(p);
         }
         return new RowSource.Rows(firstRow, rows, values, tags, odd);
     }

@@ -1,12 +1,11 @@
 package dev.lawful.cli;
 
+import dev.lawful.algebra.LawEvaluator;
 import dev.lawful.algebra.LawException;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.enforce.Completion;
 import dev.lawful.enforce.EnforcementException;
-import dev.lawful.enforce.LawResiduals;
 import dev.lawful.enforce.OnBadSample;
-import dev.lawful.enforce.ResidualAccumulator;
 import dev.lawful.enforce.SampleStatus;
 import java.io.BufferedOutputStream;
 import java.io.IOException;
@@ -123,14 +122,38 @@ public final class CompleteCommand implements Callable<Integer> {
         }
     }
 
-    /** What one worker thread keeps. */
+    /**
+     * What one worker thread keeps: its completion workspace and the largest relative residual of the rows it
+     * completed. Only that largest value is printed, so it is computed alone (one evaluation of the laws per row and
+     * a comparison), not through a whole residual report, which cost twice the completion itself.
+     */
     private static final class Work {
         final Completion.Workspace completion;
-        final ResidualAccumulator residuals;
+        final LawEvaluator evaluator;
+        final LawEvaluator.Workspace evaluation;
+        double worst;
 
         Work(Completion c, LawSet laws) {
             completion = c.newWorkspace();
-            residuals = new ResidualAccumulator(laws, 0);
+            evaluator = laws.evaluator();
+            evaluation = evaluator.newWorkspace();
+        }
+
+        /** Raises {@link #worst} to the largest |r| / scale of the rows (infinity for a residual that is not finite). */
+        void addRows(double[] x, double[] y, int n) {
+            int laws = evaluator.lawCount();
+            double[] r = Scratch.doubles(Scratch.RESIDUAL, n * laws);
+            double[] scale = Scratch.doubles(Scratch.SCALE, n * laws);
+            evaluator.residuals(x, y, n, r, scale, evaluation);
+            double w = worst;
+            for (int i = 0; i < n * laws; i++) {
+                double m = Math.abs(r[i]);
+                // as the residual report defines it: a zero scale makes any nonzero residual infinitely large
+                double rel = !Double.isFinite(m) ? Double.POSITIVE_INFINITY
+                        : scale[i] == 0 ? (m == 0 ? 0 : Double.POSITIVE_INFINITY) : m / scale[i];
+                w = Math.max(w, rel);
+            }
+            worst = w;
         }
     }
 
@@ -219,12 +242,8 @@ public final class CompleteCommand implements Callable<Integer> {
         os.flush();
         double worst = 0;
         if (counts[0] == 0) {
-            ResidualAccumulator all = run.workspaces().get(0).residuals;
-            for (Work w : run.workspaces().subList(1, run.workspaces().size())) {
-                all.merge(w.residuals);
-            }
-            for (LawResiduals l : all.report().laws()) {
-                worst = Math.max(worst, l.relative().max());
+            for (Work w : run.workspaces()) {
+                worst = Math.max(worst, w.worst);
             }
         }
         return new Summary(run.rows(), bad, counts[0], counts[1], worst);
@@ -258,7 +277,7 @@ public final class CompleteCommand implements Callable<Integer> {
             }
         }
         if (badCount == 0) {
-            w.residuals.add(x, y, n, rows.firstRow(), null);
+            w.addRows(x, y, n);
         }
         return new Done(table.rows(x, laws.inputWidth(), y, width, status, n), null, bad, badCount, moved);
     }

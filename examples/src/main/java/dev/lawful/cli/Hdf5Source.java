@@ -176,7 +176,7 @@ final class Hdf5Source extends BinarySource {
             return null;
         }
         int item = f.getSize();
-        ByteBuffer b = ByteBuffer.allocate(n * width * item);
+        ByteBuffer b = ByteBuffer.wrap(buffer(n * width * item), 0, n * width * item);
         long at = address + next * width * item;
         while (b.hasRemaining()) {
             if (raw.read(b, at + b.position()) < 0) {
@@ -210,11 +210,11 @@ final class Hdf5Source extends BinarySource {
                 throw DataException.at(name, "row " + (next + 1), columns.get(firstColumn.get(i)), "cannot read the"
                         + " dataset " + d.getPath() + ": " + e.getMessage());
             }
-            ByteBuffer b = ByteBuffer.allocate(n * width * 8).order(ByteOrder.LITTLE_ENDIAN);
+            ByteBuffer b = ByteBuffer.wrap(buffer(n * width * 8), 0, n * width * 8).order(ByteOrder.LITTLE_ENDIAN);
             flatten(slice, b);
             parts.add(new BinaryChunk.Part(b.array(), firstColumn.get(i), width, 8, ByteOrder.LITTLE_ENDIAN));
         }
-        BinaryChunk chunk = new BinaryChunk(next, n, parts);
+        BinaryChunk chunk = new BinaryChunk(this, next, n, parts);
         next += n;
         return chunk;
     }

@@ -99,13 +99,13 @@ final class NpySource extends BinarySource {
                 parts.add(new BinaryChunk.Part(b, c, 1, item, format.order()));
             }
         }
-        BinaryChunk chunk = new BinaryChunk(next, n, parts);
+        BinaryChunk chunk = new BinaryChunk(this, next, n, parts);
         next += n;
         return chunk;
     }
 
     private byte[] read(long position, int length) throws IOException {
-        ByteBuffer b = ByteBuffer.allocate(length);
+        ByteBuffer b = ByteBuffer.wrap(buffer(length), 0, length);
         while (b.hasRemaining()) {
             if (channel.read(b, position + b.position()) < 0) {
                 throw new IOException("the file ended early");

@@ -134,14 +134,15 @@ final class NpzSource extends BinarySource {
         for (Member m : members) {
             int width = (int) m.format().width();
             int length = n * width * m.format().itemSize();
-            byte[] b = m.in().readNBytes(length);
-            if (b.length < length) {
+            byte[] b = buffer(length);
+            int got = m.in().readNBytes(b, 0, length);
+            if (got < length) {
                 throw DataException.at(name, null, columns.get(m.column()), "the member ends after "
-                        + (next + b.length / (width * m.format().itemSize())) + " of its " + rows + " rows");
+                        + (next + got / (width * m.format().itemSize())) + " of its " + rows + " rows");
             }
             parts.add(new BinaryChunk.Part(b, m.column(), width, m.format().itemSize(), m.format().order()));
         }
-        BinaryChunk chunk = new BinaryChunk(next, n, parts);
+        BinaryChunk chunk = new BinaryChunk(this, next, n, parts);
         next += n;
         return chunk;
     }

@@ -13,7 +13,9 @@ final class Scratch {
     static final int X = 1;
     static final int REST = 2;
     static final int Y = 3;
-    private static final int SLOTS = 4;
+    static final int RESIDUAL = 4;
+    static final int SCALE = 5;
+    private static final int SLOTS = 6;
     private static final ThreadLocal<Scratch> PER_THREAD = ThreadLocal.withInitial(Scratch::new);
 
     private final double[][] doubles = new double[SLOTS][0];

@@ -189,13 +189,13 @@ abstract class TableOutput {
 
         @Override
         Ascii rows(double[] x, int nIn, double[] y, int width, byte[] status, int n) {
-            Ascii out = buffer(n * columns.size() * Double.BYTES);
+            Ascii out = buffer(n * columns.size() * Double.BYTES).reserveDoubles(n * columns.size());
             for (int s = 0; s < n; s++) {
                 for (int k : xAt) {
-                    out.appendLittleEndian(x[s * nIn + k]);
+                    out.putLittleEndian(x[s * nIn + k]);
                 }
                 for (int k : yAt) {
-                    out.appendLittleEndian(y[s * width + k]);
+                    out.putLittleEndian(y[s * width + k]);
                 }
             }
             return out;
