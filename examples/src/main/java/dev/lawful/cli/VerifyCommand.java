@@ -24,7 +24,7 @@ import picocli.CommandLine.Spec;
 /**
  * {@code lawful verify FILE.law --in DATA [--tol T] [--json]}: how well the rows of a data file obey the laws.
  *
- * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, or CSV on standard input; {@link DataInput}) must name every
+ * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, HDF5 or NetCDF-4, or CSV on standard input; {@link DataInput}) must name every
  * input and output element of the law file that a law or limit involves ({@code name} or {@code name[i]}), in any
  * order; other columns are ignored with a note on standard error (see {@link DataFiles}). The rows are read and
  * judged in chunks on every core, in constant memory; the report is merged exactly from the workers' partial ones
@@ -48,8 +48,8 @@ import picocli.CommandLine.Spec;
         mixinStandardHelpOptions = true,
         version = Lawful.VERSION,
         description = {
-            "Reports how well the rows of a data file (CSV, NumPy .npy or .npz) obey the laws of a law file: for each scalar law the largest, "
-                    + "mean and 99th-percentile residual |lhs - rhs| in the law's unit and relative to the law's "
+            "Reports how well the rows of a data file (CSV, NumPy .npy or .npz, HDF5 or NetCDF-4) obey the laws "
+                    + "of a law file: for each scalar law the largest, mean and 99th-percentile residual |lhs - rhs| in the law's unit and relative to the law's "
                     + "natural scale, the rows over the tolerance, NaN or infinite residuals, and a histogram of the "
                     + "relative residual by decade.",
             "The CSV header names every input and output element (name or name[i]) in any order; other columns are "
