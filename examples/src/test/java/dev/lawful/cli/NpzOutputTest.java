@@ -179,18 +179,32 @@ class NpzOutputTest {
 
     @Test
     void aRowThatCannotBeCompletedLeavesNoArchiveAndNoTemporaryFile() throws IOException {
+        Path good = reformerRows("good.csv", 3);
         Path in = reformerRows("in.csv", 20_000);
         Files.writeString(in, "1,3,0,0.05,0.02,0.01,900,NaN,0.35\n", StandardCharsets.UTF_8,
                 java.nio.file.StandardOpenOption.APPEND);
         Path npz = temp.resolve("full.npz");
+        String error = "lawful complete: " + in + ": line 20002: cannot complete this row: column 'out[0]': 'NaN' is"
+                + " read as NaN (not a number); nothing was written (--keep-going writes such rows as NaN with a"
+                + " status column)\n";
         Captured c = run("complete", reformer(), "--in", in.toString(), "--out", npz.toString());
         assertEquals(1, c.code());
-        assertEquals("lawful complete: " + in + ": line 20002: cannot complete this row: column 'out[0]': 'NaN' is"
-                + " read as NaN (not a number); nothing was written (--keep-going writes such rows as NaN with a"
-                + " status column)\n", c.err());
+        assertEquals(error, c.err());
         try (var files = Files.list(temp)) {
-            assertEquals(List.of("in.csv"), files.map(p -> p.getFileName().toString()).toList(),
+            assertEquals(List.of("good.csv", "in.csv"), files.map(p -> p.getFileName().toString()).sorted().toList(),
                     "no archive and no temporary file");
+        }
+        // an archive already there is left as it was
+        assertEquals(0, run("complete", reformer(), "--in", good.toString(), "--out", npz.toString()).code());
+        byte[] before = Files.readAllBytes(npz);
+        assertEquals(List.of("feed.npy", "T.npy", "out.npy"), read(npz, new java.util.HashMap<>()));
+        Captured again = run("complete", reformer(), "--in", in.toString(), "--out", npz.toString());
+        assertEquals(1, again.code());
+        assertEquals(error, again.err());
+        assertTrue(java.util.Arrays.equals(before, Files.readAllBytes(npz)), "the older archive survives");
+        try (var files = Files.list(temp)) {
+            assertEquals(List.of("full.npz", "good.csv", "in.csv"), files.map(p -> p.getFileName().toString())
+                    .sorted().toList(), "no temporary file");
         }
     }
 
