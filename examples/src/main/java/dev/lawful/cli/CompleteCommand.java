@@ -28,26 +28,26 @@ import picocli.CommandLine.Spec;
  * {@code lawful complete FILE.law --in DATA --out OUT [--keep-going]}: computes the completed outputs of every row
  * so that the laws hold, and writes the full table.
  *
- * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, HDF5 or NetCDF-4; {@link DataInput}) name every input and every free output
- * element of the law file (the outputs the network predicts; {@code lawful check} lists them), in any order. A
- * column for a completed output is ignored with a note (it is computed), and so is any column the law file does
- * not know; an element that no law or limit involves may be absent (a note says so, and the output leaves it out).
- * The completed outputs are those of the law file's {@code complete} statement, or an automatic well-conditioned
- * choice when it has none ({@link Completion#of(LawSet)}).
+ * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, HDF5 or NetCDF-4; {@link DataInput}) name every input and every
+ * free output element of the law file (the outputs the network predicts; {@code lawful check} lists them), in any
+ * order. A column for a completed output is ignored with a note (it is computed), and so is any column the law file
+ * does not know; an element that no law or limit involves may be absent (a note says so, and the output leaves it out).
+ * The completed outputs are those of the law file's {@code complete} statement, or an automatic well-conditioned choice
+ * when it has none ({@link Completion#of(LawSet)}).
  *
  * <p>The rows are read, completed and written in chunks on every core, in constant memory, in the input's order
- * ({@link Streamed}). The output has the inputs (as read, bit for bit) and then every output in declared order: as
- * CSV with numbers in the shortest form that reads back to the same double, so {@code lawful verify} sees exactly
- * what was computed, as a float64 {@code .npy} array when the name ends in {@code .npy}, or as a {@code .npz}
- * archive of one float64 member per element, which names its columns, when it ends in {@code .npz}
- * ({@link NpzOutput}). With {@code --keep-going} (CSV only) a row that cannot be completed (a NaN or infinite
- * input or free output, a singular system, Newton not converging) gets NaN in every output, and a last column {@code status} says why for every row
- * ({@code ok}, or {@link SampleStatus#describe(byte)}; named {@code status_} when the law file already has an
- * element called {@code status}). Without it, the first such row stops the command with its line and column and
- * nothing is written. Where the output goes follows {@link OutputTarget}: {@code -} is standard output (the
- * summary then goes to standard error), a link is written through, a special file in place, a regular file only
- * replaced once everything is written. A law file with limits adds a line saying how many rows the limits moved
- * (a row is moved exactly when one of its free outputs differs from the value read).
+ * ({@link Streamed}). The output has the inputs (as read, bit for bit) and then every output in declared order: as CSV
+ * with numbers in the shortest form that reads back to the same double, so {@code lawful verify} sees exactly what was
+ * computed, as a float64 {@code .npy} array when the name ends in {@code .npy}, or as a {@code .npz} archive of one
+ * float64 member per element, which names its columns, when it ends in {@code .npz} ({@link NpzOutput}). With
+ * {@code --keep-going} (CSV only) a row that cannot be completed (a NaN or infinite input or free output, a singular
+ * system, Newton not converging) gets NaN in every output, and a last column {@code status} says why for every row
+ * ({@code ok}, or {@link SampleStatus#describe(byte)}; named {@code status_} when the law file already has an element
+ * called {@code status}). Without it, the first such row stops the command with its line and column and nothing is
+ * written. Where the output goes follows {@link OutputTarget}: {@code -} is standard output (the summary then goes to
+ * standard error), a link is written through, a special file in place, a regular file only replaced once everything is
+ * written. A law file with limits adds a line saying how many rows the limits moved (a row is moved exactly when one of
+ * its free outputs differs from the value read).
  *
  * <p>Exit status: {@value Lawful#EXIT_OK} written; {@value Lawful#EXIT_INVALID} a row cannot be completed (without
  * {@code --keep-going}), the law file has errors, or its laws cannot be completed; {@value Lawful#EXIT_USAGE}
