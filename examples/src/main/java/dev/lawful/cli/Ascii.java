@@ -73,6 +73,25 @@ final class Ascii {
         out.write(bytes, 0, length);
     }
 
+    /**
+     * Writes part of the bytes written so far.
+     *
+     * @param out    receives them
+     * @param from   the first byte
+     * @param count  how many bytes
+     * @throws java.io.IOException when {@code out} fails
+     * @throws IndexOutOfBoundsException when the range is not within the bytes written
+     */
+    void writeTo(java.io.OutputStream out, int from, int count) throws java.io.IOException {
+        java.util.Objects.checkFromIndexSize(from, count, length);
+        out.write(bytes, from, count);
+    }
+
+    /** @return the number of bytes written so far */
+    int length() {
+        return length;
+    }
+
     /** Empties the buffer, keeping its capacity. */
     void clear() {
         length = 0;

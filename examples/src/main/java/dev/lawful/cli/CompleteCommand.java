@@ -7,9 +7,7 @@ import dev.lawful.enforce.Completion;
 import dev.lawful.enforce.EnforcementException;
 import dev.lawful.enforce.OnBadSample;
 import dev.lawful.enforce.SampleStatus;
-import java.io.BufferedOutputStream;
 import java.io.IOException;
-import java.io.OutputStream;
 import java.io.PrintWriter;
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -29,25 +27,26 @@ import picocli.CommandLine.Spec;
  * {@code lawful complete FILE.law --in DATA --out OUT [--keep-going]}: computes the completed outputs of every row
  * so that the laws hold, and writes the full table.
  *
- * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}; {@link DataInput}) name every input and every free output
- * element of the law file (the outputs the network predicts; {@code lawful check} lists them), in any order. A
- * column for a completed output is ignored with a note (it is computed), and so is any column the law file does
- * not know; an element that no law or limit involves may be absent (a note says so, and the output leaves it out).
- * The completed outputs are those of the law file's {@code complete} statement, or an automatic well-conditioned
- * choice when it has none ({@link Completion#of(LawSet)}).
+ * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, HDF5 or NetCDF-4; {@link DataInput}) name every input and every
+ * free output element of the law file (the outputs the network predicts; {@code lawful check} lists them), in any
+ * order. A column for a completed output is ignored with a note (it is computed), and so is any column the law file
+ * does not know; an element that no law or limit involves may be absent (a note says so, and the output leaves it out).
+ * The completed outputs are those of the law file's {@code complete} statement, or an automatic well-conditioned choice
+ * when it has none ({@link Completion#of(LawSet)}).
  *
  * <p>The rows are read, completed and written in chunks on every core, in constant memory, in the input's order
- * ({@link Streamed}). The output has the inputs (as read, bit for bit) and then every output in declared order: as
- * CSV with numbers in the shortest form that reads back to the same double, so {@code lawful verify} sees exactly
- * what was computed, or as a float64 {@code .npy} array when the name ends in {@code .npy}. With
- * {@code --keep-going} a row that cannot be completed (a NaN or infinite input or free output, a singular system,
- * Newton not converging) gets NaN in every output, and a last column {@code status} says why for every row
- * ({@code ok}, or {@link SampleStatus#describe(byte)}; named {@code status_} when the law file already has an
- * element called {@code status}). Without it, the first such row stops the command with its line and column and
- * nothing is written. Where the output goes follows {@link OutputTarget}: {@code -} is standard output (the
- * summary then goes to standard error), a link is written through, a special file in place, a regular file only
- * replaced once everything is written. A law file with limits adds a line saying how many rows the limits moved
- * (a row is moved exactly when one of its free outputs differs from the value read).
+ * ({@link Streamed}). The output has the inputs (as read, bit for bit) and then every output in declared order: as CSV
+ * with numbers in the shortest form that reads back to the same double, so {@code lawful verify} sees exactly what was
+ * computed, as a float64 {@code .npy} array when the name ends in {@code .npy}, or as a {@code .npz} archive of one
+ * float64 member per element, which names its columns, when it ends in {@code .npz} ({@link NpzOutput}). With
+ * {@code --keep-going} (CSV only) a row that cannot be completed (a NaN or infinite input or free output, a singular
+ * system, Newton not converging) gets NaN in every output, and a last column {@code status} says why for every row
+ * ({@code ok}, or {@link SampleStatus#describe(byte)}; named {@code status_} when the law file already has an element
+ * called {@code status}). Without it, the first such row stops the command with its line and column and nothing is
+ * written. Where the output goes follows {@link OutputTarget}: {@code -} is standard output (the summary then goes to
+ * standard error), a link is written through, a special file in place, a regular file only replaced once everything is
+ * written. A law file with limits adds a line saying how many rows the limits moved (a row is moved exactly when one of
+ * its free outputs differs from the value read).
  *
  * <p>Exit status: {@value Lawful#EXIT_OK} written; {@value Lawful#EXIT_INVALID} a row cannot be completed (without
  * {@code --keep-going}), the law file has errors, or its laws cannot be completed; {@value Lawful#EXIT_USAGE}
@@ -57,10 +56,10 @@ import picocli.CommandLine.Spec;
         mixinStandardHelpOptions = true,
         version = Lawful.VERSION,
         description = {
-            "Reads a data file (CSV, NumPy .npy or .npz) of inputs and free outputs (the outputs a network predicts; "
-                    + "'lawful check' lists them), computes the completed outputs of every row so that every law "
-                    + "holds, and writes a CSV (or .npy) file with the inputs and every output in declared order, "
-                    + "in chunks on every core and in the input's order.",
+            "Reads a data file (CSV, NumPy .npy or .npz, HDF5 or NetCDF-4) of inputs and free outputs (the outputs a "
+                    + "network predicts; 'lawful check' lists them), computes the completed outputs of every row so "
+                    + "that every law holds, and writes a CSV (or NumPy .npy or .npz) file with the inputs and every "
+                    + "output in declared order, in chunks on every core and in the input's order.",
             "Numbers are written in the shortest form that reads back to the same double, so 'lawful verify' sees "
                     + "exactly what was computed. Columns the law file does not know, and columns of completed "
                     + "outputs, are ignored with a note."},
@@ -91,14 +90,15 @@ public final class CompleteCommand implements Callable<Integer> {
     private DataInput input;
 
     @Option(names = "--out", required = true, paramLabel = "OUT",
-            description = "the file to write: CSV, or a NumPy .npy file when its name ends in .npy; - for CSV on "
-                    + "standard output. A file is replaced only once everything is written; a link is written "
-                    + "through")
+            description = "the file to write: CSV; a NumPy .npy file (one float64 array without names) when its "
+                    + "name ends in .npy; a NumPy .npz archive (one float64 member per element, such as feed.npy "
+                    + "of shape (rows, 6), read back without --columns) when it ends in .npz; - for CSV on standard "
+                    + "output. A file is replaced only once everything is written; a link is written through")
     private String outFile;
 
     @Option(names = "--keep-going",
             description = "write a row that cannot be completed as NaN outputs and add a status column saying why, "
-                    + "instead of stopping at the first such row")
+                    + "instead of stopping at the first such row (CSV output only: .npy and .npz hold numbers only)")
     private boolean keepGoing;
 
     /** Creates the command; picocli calls this and fills in the arguments. */
@@ -189,6 +189,7 @@ public final class CompleteCommand implements Callable<Integer> {
                 target.commit();
                 summary(report, laws, completion, source, target, table, s);
             } finally {
+                table.release();
                 target.abandon();
             }
             return Lawful.EXIT_OK;
@@ -213,8 +214,7 @@ public final class CompleteCommand implements Callable<Integer> {
 
     private Summary write(LawSet laws, Completion completion, RowSource source, DataFiles.Selection sel,
                           OutputTarget target, TableOutput table, PrintWriter err) throws CommandFailure, IOException {
-        OutputStream os = new BufferedOutputStream(target.open(), 1 << 16);
-        os.write(table.begin());
+        table.start(target);
         boolean limits = laws.expand().limitCount() > 0;
         int[] freeAt = new int[completion.freeNames().size()];
         for (int j = 0; j < freeAt.length; j++) {
@@ -228,7 +228,7 @@ public final class CompleteCommand implements Callable<Integer> {
                     if (done.failure() != null) {
                         throw new CommandFailure(Lawful.EXIT_INVALID, done.failure());
                     }
-                    done.bytes().writeTo(os);
+                    table.write(done.bytes());
                     table.recycle(done.bytes());
                     for (long[] b : done.bad()) {
                         if (bad.size() < LINES_SHOWN) {
@@ -239,7 +239,6 @@ public final class CompleteCommand implements Callable<Integer> {
                     counts[1] += done.moved();
                     return true;
                 });
-        os.flush();
         double worst = 0;
         if (counts[0] == 0) {
             for (Work w : run.workspaces()) {

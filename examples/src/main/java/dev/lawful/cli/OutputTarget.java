@@ -22,6 +22,8 @@ import java.util.concurrent.ThreadLocalRandom;
  *       everything was written ({@link #commit()}), so a failure never leaves half a file. A new file gets the
  *       permissions the process's umask gives any new file; a replaced file keeps its own.</li>
  * </ul>
+ * Content assembled before it is written (the members of a {@code .npz} archive) goes to further hidden files
+ * beside the target ({@link #scratch()}), removed when the target is committed or abandoned.
  */
 final class OutputTarget {
     /** Names of standard output on Linux and other Unix systems (common practice). */
@@ -36,6 +38,7 @@ final class OutputTarget {
     private final boolean direct;
     private Path temp;
     private OutputStream stream;
+    private final java.util.List<Path> scratch = new java.util.ArrayList<>();
 
     private OutputTarget(String shown, Path target, OutputStream stdout, boolean direct) {
         this.shown = shown;
@@ -137,6 +140,23 @@ final class OutputTarget {
         return stream;
     }
 
+    /**
+     * Creates a hidden empty file beside the target (in the folder of the path given, for a special file), for
+     * content assembled before the target is written. It is removed by {@link #commit()} and {@link #abandon()},
+     * whatever happens; the caller closes what it opened on it first.
+     *
+     * @return the new file
+     * @throws IOException when it cannot be created, or for standard output, which has no folder
+     */
+    Path scratch() throws IOException {
+        if (target == null) {
+            throw new IOException("standard output has no folder for temporary files");
+        }
+        Path p = createTemp();
+        scratch.add(p);
+        return p;
+    }
+
     /** A hidden file beside the target, created as any new file is (its permissions follow the umask). */
     private Path createTemp() throws IOException {
         Path dir = target.toAbsolutePath().getParent();
@@ -154,16 +174,16 @@ final class OutputTarget {
     }
 
     /**
-     * Closes the stream and puts the file in place.
+     * Closes the stream and puts the file in place; removes the scratch files.
      *
      * @throws IOException when closing or moving fails (the temporary file is then removed)
      */
     void commit() throws IOException {
-        stream.close();
-        if (temp == null) {
-            return;
-        }
         try {
+            stream.close();
+            if (temp == null) {
+                return;
+            }
             try {
                 Files.move(temp, target, StandardCopyOption.REPLACE_EXISTING, StandardCopyOption.ATOMIC_MOVE);
             } catch (AtomicMoveNotSupportedException e) {
@@ -175,7 +195,7 @@ final class OutputTarget {
         }
     }
 
-    /** Closes the stream and removes the temporary file, if any; never throws. */
+    /** Closes the stream and removes the temporary file and the scratch files, if any; never throws. */
     void abandon() {
         try {
             if (stream != null && target != null) {
@@ -192,6 +212,14 @@ final class OutputTarget {
             }
             temp = null;
         }
+        for (Path p : scratch) {
+            try {
+                Files.deleteIfExists(p);
+            } catch (IOException ignored) {
+                // hidden and harmless; the real error, if any, is already being reported
+            }
+        }
+        scratch.clear();
     }
 
     /**

@@ -3,7 +3,9 @@ package dev.lawful.cli;
 import dev.lawful.algebra.LawSet;
 import dev.lawful.enforce.SampleStatus;
 import dev.lawful.io.CsvWriter;
+import java.io.BufferedOutputStream;
 import java.io.IOException;
+import java.io.OutputStream;
 import java.nio.ByteBuffer;
 import java.nio.channels.FileChannel;
 import java.nio.charset.StandardCharsets;
@@ -15,40 +17,48 @@ import java.util.Set;
 
 /**
  * The table {@code lawful complete} writes: the inputs the data file has, then every output (those it has and the
- * completed ones), in declared order; as CSV (with an optional status column), or as a NumPy {@code .npy} array of
- * little-endian float64 in C order. Rows are formatted on the worker threads, chunk by chunk ({@link #rows}).
+ * completed ones), in declared order; as CSV (with an optional status column), as a NumPy {@code .npy} array of
+ * little-endian float64 in C order, or as a NumPy {@code .npz} archive of one such array per element
+ * ({@link NpzOutput}). Rows are formatted on the worker threads, chunk by chunk ({@link #rows}), and written in
+ * order by one thread: {@link #start}, {@link #write} for each chunk, {@link #finish}, and {@link #release} in any
+ * case.
  */
 abstract class TableOutput {
     final List<String> columns;
     final int[] xAt;
     final int[] yAt;
 
-    private TableOutput(List<String> columns, int[] xAt, int[] yAt) {
+    private OutputStream stream;
+
+    TableOutput(List<String> columns, int[] xAt, int[] yAt) {
         this.columns = columns;
         this.xAt = xAt;
         this.yAt = yAt;
     }
 
     /**
-     * @param out       the {@code --out} argument: a name ending in {@code .npy} (any case) gives a .npy file
+     * @param out       the {@code --out} argument: a name ending in {@code .npy} (any case) gives a .npy file, one
+     *                  ending in {@code .npz} a .npz archive, any other name (and {@code -}) CSV
      * @param laws      the law set
      * @param sel       which elements the data file has
      * @param keepGoing whether rows that cannot be completed are written with a status column
      * @return the writer
-     * @throws CommandFailure when a .npy file is asked for on standard output or with a status column
+     * @throws CommandFailure when a .npy or .npz file is asked for with a status column
      */
     static TableOutput of(String out, LawSet laws, DataFiles.Selection sel, boolean keepGoing) throws CommandFailure {
         List<String> columns = new java.util.ArrayList<>();
         int[] xAt = present(laws.inputNames(), sel, columns);
         int[] yAt = present(laws.outputNames(), sel, columns);
-        if (!out.toLowerCase(Locale.ROOT).endsWith(".npy")) {
+        String name = out.toLowerCase(Locale.ROOT);
+        String binary = name.endsWith(".npy") ? ".npy" : name.endsWith(".npz") ? ".npz" : null;
+        if (binary == null) {
             return new Csv(columns, xAt, yAt, keepGoing);
         }
         if (keepGoing) {
-            throw new CommandFailure(Lawful.EXIT_USAGE, "lawful complete: --keep-going adds a status column, which a"
-                    + " .npy file (numbers only) cannot hold; write CSV, or leave out --keep-going");
+            throw new CommandFailure(Lawful.EXIT_USAGE, "lawful complete: --keep-going adds a status column, which a "
+                    + binary + " file (numbers only) cannot hold; write CSV, or leave out --keep-going");
         }
-        return new Npy(columns, xAt, yAt);
+        return binary.equals(".npy") ? new Npy(columns, xAt, yAt) : new NpzOutput(columns, xAt, yAt, laws);
     }
 
     private static int[] present(List<String> names, DataFiles.Selection sel, List<String> columns) {
@@ -88,6 +98,45 @@ abstract class TableOutput {
     abstract byte[] begin();
 
     /**
+     * Opens the target and writes what comes before the first row.
+     *
+     * @param target where the table goes
+     * @throws IOException when it cannot be created or written
+     */
+    void start(OutputTarget target) throws IOException {
+        stream = new BufferedOutputStream(target.open(), 1 << 16);
+        stream.write(begin());
+    }
+
+    /** @return the buffered stream to the target, once {@link #start} has opened it */
+    final OutputStream stream() {
+        return stream;
+    }
+
+    /**
+     * Writes a chunk's rows, chunks in order (on the one thread that writes).
+     *
+     * @param rows what {@link #rows} made of them; not modified
+     * @throws IOException when they cannot be written
+     */
+    void write(Ascii rows) throws IOException {
+        rows.writeTo(stream);
+    }
+
+    /**
+     * @param x     inputs, row-major, {@code n × nIn}
+     * @param nIn   the input width
+     * @param y     outputs, row-major, {@code n × width}
+     * @param width the output width
+     * @param s     the row
+     * @param c     the column of the table ({@link #columns})
+     * @return the value in row {@code s}, column {@code c} of the table
+     */
+    final double value(double[] x, int nIn, double[] y, int width, int s, int c) {
+        return c < xAt.length ? x[s * nIn + xAt[c]] : y[s * width + yAt[c - xAt.length]];
+    }
+
+    /**
      * Formats rows (on a worker thread).
      *
      * @param x      inputs, row-major, {@code n × inputWidth}
@@ -101,13 +150,19 @@ abstract class TableOutput {
     abstract Ascii rows(double[] x, int nIn, double[] y, int width, byte[] status, int n);
 
     /**
-     * Completes the file once every row is written (the .npy header then gets the row count).
+     * Completes the file once every row is written (the .npy header then gets the row count, the .npz archive is
+     * written) and flushes it; the target still has to be committed.
      *
      * @param target the file written, still open
      * @param rows   the rows written
-     * @throws IOException when the file cannot be updated
+     * @throws IOException when the file cannot be written or updated
      */
     void finish(OutputTarget target, long rows) throws IOException {
+        stream.flush();
+    }
+
+    /** Closes whatever this writer opened besides the target's stream (which the target closes); never throws. */
+    void release() {
     }
 
     /** CSV: numbers in the shortest form that reads back to the same double ({@link FastDecimal}). */
@@ -203,6 +258,7 @@ abstract class TableOutput {
 
         @Override
         void finish(OutputTarget target, long rows) throws IOException {
+            super.finish(target, rows);
             try (FileChannel ch = FileChannel.open(target.written(), StandardOpenOption.WRITE)) {
                 ch.write(ByteBuffer.wrap(NpyFormat.header("<f8", false, new long[] {rows, columns.size()}, PREFIX)),
                         0);

@@ -24,20 +24,19 @@ import picocli.CommandLine.Spec;
 /**
  * {@code lawful verify FILE.law --in DATA [--tol T] [--json]}: how well the rows of a data file obey the laws.
  *
- * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, or CSV on standard input; {@link DataInput}) must name every
- * input and output element of the law file that a law or limit involves ({@code name} or {@code name[i]}), in any
- * order; other columns are ignored with a note on standard error (see {@link DataFiles}). The rows are read and
- * judged in chunks on every core, in constant memory; the report is merged exactly from the workers' partial ones
- * ({@link ResidualAccumulator}), so it has the same bits however the rows were split. Each row is a
- * sample in the declared units. The report ({@link ResidualReport}) gives, for each scalar law, the largest, mean
- * and 99th-percentile residual in the law's unit and relative to the law's natural scale, the samples over the
- * tolerance, the NaN or infinite residuals and a histogram by decade; it is printed as aligned tables with a
- * verdict that names the worst line of the file for each law over the tolerance, or with {@code --json} as one
- * JSON object: {@code file}, {@code data}, {@code ignoredColumns}, {@code report} (the form of
- * {@link ResidualReport#writeJson}) and {@code worst} (for each scalar law, {@code {law, line}}: the line of the
- * file with the largest relative residual, null without samples). A file with limits adds, per scalar limit, the
- * rows outside it (its value g below 0, or NaN: limits have no tolerance) and the smallest g in the limit's unit
- * with its line ({@link LimitCheck}; {@code limits} in JSON).
+ * <p>The data (CSV, NumPy {@code .npy}/{@code .npz}, HDF5 or NetCDF-4, or CSV on standard input; {@link DataInput})
+ * must name every input and output element of the law file that a law or limit involves ({@code name} or
+ * {@code name[i]}), in any order; other columns are ignored with a note on standard error (see {@link DataFiles}). The
+ * rows are read and judged in chunks on every core, in constant memory; the report is merged exactly from the workers'
+ * partial ones ({@link ResidualAccumulator}), so it has the same bits however the rows were split. Each row is a sample
+ * in the declared units. The report ({@link ResidualReport}) gives, for each scalar law, the largest, mean and
+ * 99th-percentile residual in the law's unit and relative to the law's natural scale, the samples over the tolerance,
+ * the NaN or infinite residuals and a histogram by decade; it is printed as aligned tables with a verdict that names
+ * the worst line of the file for each law over the tolerance, or with {@code --json} as one JSON object: {@code file},
+ * {@code data}, {@code ignoredColumns}, {@code report} (the form of {@link ResidualReport#writeJson}) and {@code worst}
+ * (for each scalar law, {@code {law, line}}: the line of the file with the largest relative residual, null without
+ * samples). A file with limits adds, per scalar limit, the rows outside it (its value g below 0, or NaN: limits have no
+ * tolerance) and the smallest g in the limit's unit with its line ({@link LimitCheck}; {@code limits} in JSON).
  *
  * <p>Exit status: {@value Lawful#EXIT_OK} every sample within tolerance for every law; {@value Lawful#EXIT_INVALID}
  * some relative residual over the tolerance (or NaN), a row outside a limit, or errors in the law file; {@value Lawful#EXIT_USAGE} usage
@@ -48,8 +47,9 @@ import picocli.CommandLine.Spec;
         mixinStandardHelpOptions = true,
         version = Lawful.VERSION,
         description = {
-            "Reports how well the rows of a data file (CSV, NumPy .npy or .npz) obey the laws of a law file: for each scalar law the largest, "
-                    + "mean and 99th-percentile residual |lhs - rhs| in the law's unit and relative to the law's "
+            "Reports how well the rows of a data file (CSV, NumPy .npy or .npz, HDF5 or NetCDF-4) obey the laws "
+                    + "of a law file: for each scalar law the largest, mean and 99th-percentile residual |lhs - rhs| "
+                    + "in the law's unit and relative to the law's "
                     + "natural scale, the rows over the tolerance, NaN or infinite residuals, and a histogram of the "
                     + "relative residual by decade.",
             "The CSV header names every input and output element (name or name[i]) in any order; other columns are "
