@@ -33,7 +33,8 @@ import java.util.SplittableRandom;
  * law vector (written with jhdf). Then, for each format: {@code cat}, {@code verify} of the completed file and
  * {@code complete} (CSV to CSV; a binary format to {@code .npy}). The JAVA OPTIONS (such as {@code -Xmx512m}) are
  * passed to each {@code java -jar examples/target/lawful.jar} run. Prints one line per run: seconds, MB/s of input,
- * rows/s, peak resident MB, and the time relative to {@code cat}.
+ * rows/s, peak resident MB, and the time relative to {@code cat}; first, the time of {@code complete} on a
+ * one-row CSV: what every run pays whatever its size (starting the JVM, loading the classes, reading the law file).
  */
 public final class CliThroughput {
     private static final String LAW = "examples/laws/steam-reformer.law";
@@ -65,6 +66,15 @@ public final class CliThroughput {
                 Runtime.getRuntime().availableProcessors());
         System.out.printf(Locale.ROOT, "%-8s %-22s %9s %9s %11s %12s %10s%n", "format", "run", "seconds", "MB/s",
                 "rows/s", "peak RSS MB", "x cat");
+        // what every run pays whatever the row count: starting the JVM, loading the classes, reading the law file
+        Path one = dir.resolve("one-row.csv");
+        try (java.io.BufferedReader r = Files.newBufferedReader(csv, StandardCharsets.UTF_8)) {
+            Files.writeString(one, r.readLine() + "\n" + r.readLine() + "\n", StandardCharsets.UTF_8);
+        }
+        double[] fixed = run(lawful(jvm, "complete", LAW, "--in", one.toString(), "--out", dir.resolve("one-full.csv")
+                .toString()));
+        System.out.printf(Locale.ROOT, "%-8s %-22s %9.2f %9s %11s %12.0f %10s%n", "-", "complete of one row", fixed[0],
+                "-", "-", fixed[1] / 1024, "-");
         for (Path in : List.of(csv, npy, h5)) {
             boolean text = in.equals(csv);
             String format = text ? "csv" : in.equals(npy) ? "npy" : "hdf5";
