@@ -43,13 +43,22 @@ final class Certifier {
 
     /** @return whether the given laws (all when null) of sample s are within the bound, by {@code w}'s residuals */
     boolean converged(int s, SolveWork w, int[] subset) {
+        return within(s, w, subset, 1);
+    }
+
+    /**
+     * @param factor how many times the bound a residual may be
+     * @return whether the given laws (all when null) of sample s are within {@code factor} times the bound, by
+     *         {@code w}'s residuals
+     */
+    boolean within(int s, SolveWork w, int[] subset, double factor) {
         int count = subset == null ? n : subset.length;
         for (int j = 0; j < count; j++) {
             int i = subset == null ? j : subset[j];
             double r = w.residual[s * n + i];
             double scale = w.scale[s * n + i];
             // an infinite scale would admit any residual: an output that overflowed is never within the bound
-            if (!(Math.abs(r) <= boundFactor[i] * EPS * scale) || scale == Double.POSITIVE_INFINITY) {
+            if (!(Math.abs(r) <= factor * boundFactor[i] * EPS * scale) || scale == Double.POSITIVE_INFINITY) {
                 return false;
             }
         }

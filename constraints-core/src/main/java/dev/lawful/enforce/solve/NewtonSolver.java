@@ -1,6 +1,7 @@
 package dev.lawful.enforce.solve;
 
 import dev.lawful.algebra.LawEvaluator;
+import dev.lawful.algebra.ResidualSplit;
 import dev.lawful.enforce.SampleStatus;
 import dev.lawful.enforce.plan.CompletionPlan;
 import dev.lawful.enforce.plan.NewtonStart;
@@ -15,12 +16,24 @@ import java.util.Arrays;
 final class NewtonSolver implements TierSolver {
     /** A sample that no longer iterates: converged, failed, or out of step halvings. */
     private static final double STOPPED = -1;
+    /**
+     * How many times the rounding bound a residual of the split evaluation may be before the whole laws are
+     * evaluated for that sample: far above the split's own error (a few roundings of the scale), and at about
+     * 1e-13 of the scale still below where Newton's last quadratic step starts.
+     */
+    private static final double NEAR = 1024;
 
     private final Columns columns;
     private final Certifier certifier;
     private final StageBlocks blocks;
     private final ImplicitGradient gradient;
     private final LawEvaluator.Partial completedJacobian;
+    /**
+     * The laws split into the addends Newton's steps leave alone (inputs and free outputs only), evaluated once per
+     * forward, and those they move ({@link ResidualSplit}); null when no law has an addend of the first kind.
+     */
+    private final ResidualSplit split;
+    private final ResidualSplit.Workspace splitWork;
     private final Stages stages;
     private final NewtonStart start;
     private final LawEvaluator.Workspace guessEvaluation;
@@ -48,6 +61,11 @@ final class NewtonSolver implements TierSolver {
     private double[] activeResidual;
     private double[] activeScale;
     private double[] activeJy;
+    /** Per sample, and gathered for the samples evaluated: the fixed parts of residuals and scales. */
+    private double[] fixedResidual;
+    private double[] fixedScale;
+    private double[] activeFixedResidual;
+    private double[] activeFixedScale;
 
     NewtonSolver(CompletionPlan plan, Columns columns) {
         this.columns = columns;
@@ -55,6 +73,9 @@ final class NewtonSolver implements TierSolver {
         this.blocks = new StageBlocks(plan, certifier);
         this.gradient = new ImplicitGradient(plan);
         this.completedJacobian = plan.evaluator().partial(plan.completed());
+        ResidualSplit parts = ResidualSplit.of(plan.expanded(), plan.evaluator(), plan.completed());
+        this.split = parts.fixedAddends() == 0 ? null : parts;
+        this.splitWork = split == null ? null : split.newWorkspace();
         this.stages = plan.stages();
         this.start = plan.start();
         this.guessEvaluation = start.guesses() == null ? null : start.guesses().newWorkspace();
@@ -86,12 +107,19 @@ final class NewtonSolver implements TierSolver {
         activeResidual = new double[batch * n];
         activeScale = new double[batch * n];
         activeJy = new double[batch * nnz];
+        fixedResidual = new double[batch * n];
+        fixedScale = new double[batch * n];
+        activeFixedResidual = new double[batch * n];
+        activeFixedScale = new double[batch * n];
     }
 
     @Override
     public void forward(double[] x, double[] z, int batch, double[] full, byte[] st, boolean certify) {
         ensure(batch);
         columns.scatterFree(x, z, batch, full, st);
+        if (split != null) {
+            split.fixed(x, full, batch, fixedResidual, fixedScale, splitWork);
+        }
         startValues(x, batch, full);
         for (int g = 0; g < stages.count(); g++) {
             stage(x, batch, full, st, g);
@@ -142,7 +170,7 @@ final class NewtonSolver implements TierSolver {
             }
         }
         for (int iteration = 0; iteration <= 4 * maxIterations && remaining > 0; iteration++) {
-            evaluateActive(x, full, batch, st);
+            evaluateActive(x, full, batch, st, stages.get(g).laws());
             remaining = 0;
             for (int s = 0; s < batch; s++) {
                 if (st[s] == SampleStatus.NOT_CONVERGED && stepLength[s] >= 0 && iterate(s, g, full, st)) {
@@ -217,19 +245,52 @@ final class NewtonSolver implements TierSolver {
      * the work arrays (other rows are left as they were). Samples converge at different iterations, so once a
      * quarter of the batch is done the rest are gathered into contiguous rows and evaluated alone: the batch then
      * costs the sum of its samples' iterations rather than the batch size times the slowest sample's.
+     *
+     * <p>With a {@link ResidualSplit}, the laws' fixed parts were evaluated once and only the moving parts are
+     * evaluated here; a sample whose residuals come out within {@link #NEAR} times the rounding bound is then
+     * evaluated again on the whole laws, whose residual is accurate to a rounding of itself rather than of the
+     * scale: Newton's stopping test and its last steps (where the residual is a few roundings of the scale and the
+     * split's own rounding would stall the line search) always see the whole evaluation.
      */
-    private void evaluateActive(double[] x, double[] full, int batch, byte[] st) {
+    private void evaluateActive(double[] x, double[] full, int batch, byte[] st, int[] stageLaws) {
         int count = 0;
         for (int s = 0; s < batch; s++) {
             if (st[s] == SampleStatus.NOT_CONVERGED && stepLength[s] >= 0) {
                 active[count++] = s;
             }
         }
-        if (4 * count >= 3 * batch) {
-            completedJacobian.evaluate(x, full, batch, work.residual, work.scale, work.jy, work.evaluation);
+        if (count == 0) {
             return;
         }
-        if (count == 0) {
+        if (split == null) {
+            evaluateRows(x, full, batch, count, false);
+            return;
+        }
+        evaluateRows(x, full, batch, count, true);
+        int near = 0;
+        for (int a = 0; a < count; a++) {
+            int s = active[a];
+            if (certifier.within(s, work, stageLaws, NEAR)) {
+                active[near++] = s;
+            }
+        }
+        if (near > 0) {
+            evaluateRows(x, full, batch, near, false);
+        }
+    }
+
+    /**
+     * Evaluates the samples {@code active[0 .. count)}: the whole batch in place when they are most of it, else
+     * gathered; with the split's moving parts or on the whole laws.
+     */
+    private void evaluateRows(double[] x, double[] full, int batch, int count, boolean moving) {
+        if (4 * count >= 3 * batch) {
+            if (moving) {
+                split.evaluate(x, full, batch, fixedResidual, fixedScale, work.residual, work.scale, work.jy,
+                        splitWork);
+            } else {
+                completedJacobian.evaluate(x, full, batch, work.residual, work.scale, work.jy, work.evaluation);
+            }
             return;
         }
         for (int a = 0; a < count; a++) {
@@ -238,9 +299,18 @@ final class NewtonSolver implements TierSolver {
                 System.arraycopy(x, s * nIn, activeX, a * nIn, nIn);
             }
             System.arraycopy(full, s * nOut, activeY, a * nOut, nOut);
+            if (moving) {
+                System.arraycopy(fixedResidual, s * n, activeFixedResidual, a * n, n);
+                System.arraycopy(fixedScale, s * n, activeFixedScale, a * n, n);
+            }
         }
-        completedJacobian.evaluate(nIn > 0 ? activeX : x, activeY, count, activeResidual, activeScale, activeJy,
-                work.evaluation);
+        double[] xs = nIn > 0 ? activeX : x;
+        if (moving) {
+            split.evaluate(xs, activeY, count, activeFixedResidual, activeFixedScale, activeResidual, activeScale,
+                    activeJy, splitWork);
+        } else {
+            completedJacobian.evaluate(xs, activeY, count, activeResidual, activeScale, activeJy, work.evaluation);
+        }
         for (int a = 0; a < count; a++) {
             int s = active[a];
             System.arraycopy(activeResidual, a * n, work.residual, s * n, n);
