@@ -276,16 +276,50 @@ public final class LawEvaluator {
             }
             keep[c] = true;
         }
-        return new Partial(keep);
+        boolean[] entries = new boolean[outputNonzeros()];
+        for (int k = 0; k < entries.length; k++) {
+            entries[k] = keep[terms.pattern().outputColumn(k)];
+        }
+        return new Partial(entries);
     }
 
     /**
-     * Residuals, scales and the dC/dy entries of chosen output columns ({@link #partial(int[])}). Entries of other
-     * columns in the Jacobian buffer are left as they were.
+     * The dC/dy entries chosen one by one: for a caller that knows some entries already (such as the constant ones,
+     * {@link #constantOutputEntries()}) and needs only the others.
+     *
+     * @param entries per dC/dy entry (in storage order, {@link #outputNonzeros()} of them), whether it is computed;
+     *                copied
+     * @return an evaluation of residuals, scales and those entries; immutable and thread-safe
+     * @throws IllegalArgumentException when the array's length is not {@link #outputNonzeros()}
+     */
+    public Partial partialEntries(boolean[] entries) {
+        if (entries.length != outputNonzeros()) {
+            throw new IllegalArgumentException("one flag per dC/dy entry: expected " + outputNonzeros() + ", found "
+                    + entries.length);
+        }
+        return new Partial(entries.clone());
+    }
+
+    /**
+     * @return per dC/dy entry (in storage order), its value when the derivative is a constant (the same for every
+     *         sample: a free output entering a law linearly with a constant coefficient, say), else NaN; a new array
+     * @throws LawException when the derivatives grow beyond {@link Limits#MAX_SCALAR_NODES}
+     */
+    public double[] constantOutputEntries() {
+        double[] c = new double[outputNonzeros()];
+        for (Program.Root r : terms.roots(Program.JACOBIAN_Y)) {
+            c[r.slot()] = r.term().kind() == Term.Kind.CONST ? r.term().constant() : Double.NaN;
+        }
+        return c;
+    }
+
+    /**
+     * Residuals, scales and chosen dC/dy entries ({@link #partial(int[])}, {@link #partialEntries(boolean[])}),
+     * optionally with every dC/dx entry. Entries not chosen in the Jacobian buffer are left as they were.
      */
     public final class Partial {
         private final boolean[] keep;
-        private final AtomicReferenceArray<Program> partialPrograms = new AtomicReferenceArray<>(4);
+        private final AtomicReferenceArray<Program> partialPrograms = new AtomicReferenceArray<>(16);
 
         private Partial(boolean[] keep) {
             this.keep = keep;
@@ -293,7 +327,7 @@ public final class LawEvaluator {
 
         /**
          * Like {@link LawEvaluator#evaluate(double[], double[], int, double[], double[], double[], double[],
-         * Workspace)} without dC/dx, computing only the chosen columns' entries of {@code jacobianY} (same layout).
+         * Workspace)} without dC/dx, computing only the chosen entries of {@code jacobianY} (same layout).
          *
          * @param x         inputs, {@code batch * inputWidth} values (may be null when {@code inputWidth} is 0)
          * @param y         outputs, {@code batch * outputWidth} values; read only
@@ -301,7 +335,7 @@ public final class LawEvaluator {
          * @param residuals output buffer of {@code batch * lawCount} values, or null
          * @param scales    output buffer of {@code batch * lawCount} values, or null
          * @param jacobianY output buffer of {@code batch * outputNonzeros()} values (required); only the chosen
-         *                  columns' entries are written
+         *                  entries are written
          * @param workspace this thread's work arrays, from {@link LawEvaluator#newWorkspace()}; overwritten
          * @throws IllegalArgumentException when an array is shorter than the batch needs, the batch is negative or
          *                                  the workspace belongs to another evaluator
@@ -309,17 +343,29 @@ public final class LawEvaluator {
          */
         public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales,
                              double[] jacobianY, Workspace workspace) {
-            check(x, y, batch, residuals, scales, jacobianY, null);
-            int mask = mask(residuals, scales, null, null);
-            Program p = partialPrograms.get(mask);
-            if (p == null) {
-                partialPrograms.compareAndSet(mask, null, compile(partialRoots(residuals != null, scales != null)));
-                p = partialPrograms.get(mask);
-            }
-            run(p, x, y, batch, residuals, scales, jacobianY, null, workspace);
+            evaluate(x, y, batch, residuals, scales, jacobianY, null, workspace);
         }
 
-        private List<Program.Root> partialRoots(boolean residuals, boolean scales) {
+        /**
+         * Like {@link #evaluate(double[], double[], int, double[], double[], double[], Workspace)}, with every dC/dx
+         * entry too when {@code jacobianX} is given.
+         *
+         * @param jacobianX output buffer of {@code batch * inputNonzeros()} values, or null
+         */
+        public void evaluate(double[] x, double[] y, int batch, double[] residuals, double[] scales,
+                             double[] jacobianY, double[] jacobianX, Workspace workspace) {
+            check(x, y, batch, residuals, scales, jacobianY, jacobianX);
+            int mask = mask(residuals, scales, null, jacobianX);
+            Program p = partialPrograms.get(mask);
+            if (p == null) {
+                partialPrograms.compareAndSet(mask, null, compile(partialRoots(residuals != null, scales != null,
+                        jacobianX != null)));
+                p = partialPrograms.get(mask);
+            }
+            run(p, x, y, batch, residuals, scales, jacobianY, jacobianX, workspace);
+        }
+
+        private List<Program.Root> partialRoots(boolean residuals, boolean scales, boolean inputs) {
             List<Program.Root> wanted = new ArrayList<>();
             if (residuals) {
                 wanted.addAll(terms.roots(Program.VALUE));
@@ -328,9 +374,12 @@ public final class LawEvaluator {
                 wanted.addAll(terms.roots(Program.SCALE));
             }
             for (Program.Root r : terms.roots(Program.JACOBIAN_Y)) {
-                if (keep[terms.pattern().outputColumn(r.slot())]) {
+                if (keep[r.slot()]) {
                     wanted.add(r);
                 }
+            }
+            if (inputs) {
+                wanted.addAll(terms.roots(Program.JACOBIAN_X));
             }
             return wanted;
         }

@@ -24,6 +24,23 @@ final class ImplicitGradient {
     private final int nIn;
     private final int nOut;
     private final int nFree;
+    /**
+     * Per dC/dy entry: whether it is the same constant for every sample, and that constant. The backward reads
+     * those from here and evaluates only the others ({@link #varying}): a free output that enters a law linearly
+     * with a constant coefficient (every free output of a balance law, typically) costs a store per sample
+     * otherwise, and the hand-written kernel pays nothing for it.
+     */
+    private final boolean[] isConstant;
+    private final double[] constantEntry;
+    private final LawEvaluator.Partial varying;
+    private final boolean anyVarying;
+    /** The dC/dz entries (role < 0): entry, free column and law, the constant ones apart with their values. */
+    private final int[] fixedFreeColumn;
+    private final int[] fixedFreeLaw;
+    private final double[] fixedFreeValue;
+    private final int[] varyingFreeEntry;
+    private final int[] varyingFreeColumn;
+    private final int[] varyingFreeLaw;
 
     ImplicitGradient(CompletionPlan plan) {
         this.evaluator = plan.evaluator();
@@ -38,6 +55,49 @@ final class ImplicitGradient {
         this.nIn = plan.inputWidth();
         this.nOut = plan.outputWidth();
         this.nFree = plan.freeWidth();
+        this.constantEntry = evaluator.constantOutputEntries();
+        this.isConstant = new boolean[constantEntry.length];
+        boolean[] evaluated = new boolean[constantEntry.length];
+        boolean some = false;
+        int fixedCount = 0;
+        int varyingCount = 0;
+        for (int e = 0; e < constantEntry.length; e++) {
+            isConstant[e] = !Double.isNaN(constantEntry[e]);
+            evaluated[e] = !isConstant[e];
+            some |= evaluated[e];
+            if (entryRole[e] < 0) {
+                if (isConstant[e]) {
+                    fixedCount++;
+                } else {
+                    varyingCount++;
+                }
+            }
+        }
+        this.varying = evaluator.partialEntries(evaluated);
+        this.anyVarying = some;
+        this.fixedFreeColumn = new int[fixedCount];
+        this.fixedFreeLaw = new int[fixedCount];
+        this.fixedFreeValue = new double[fixedCount];
+        this.varyingFreeEntry = new int[varyingCount];
+        this.varyingFreeColumn = new int[varyingCount];
+        this.varyingFreeLaw = new int[varyingCount];
+        int a = 0;
+        int b = 0;
+        for (int e = 0; e < constantEntry.length; e++) {
+            int r = entryRole[e];
+            if (r >= 0) {
+                continue;
+            }
+            if (isConstant[e]) {
+                fixedFreeColumn[a] = -r - 1;
+                fixedFreeLaw[a] = entryLaw[e];
+                fixedFreeValue[a++] = constantEntry[e];
+            } else {
+                varyingFreeEntry[b] = e;
+                varyingFreeColumn[b] = -r - 1;
+                varyingFreeLaw[b++] = entryLaw[e];
+            }
+        }
     }
 
     /**
@@ -46,7 +106,9 @@ final class ImplicitGradient {
      */
     int backward(double[] x, int batch, double[] full, double[] g, double[] gz, double[] gx, boolean throwOnSingular,
             SolveWork w) {
-        evaluator.evaluate(x, full, batch, null, null, w.jy, gx == null ? null : w.jx, w.evaluation);
+        if (anyVarying || gx != null) {
+            varying.evaluate(x, full, batch, null, null, w.jy, gx == null ? null : w.jx, w.evaluation);
+        }
         double[] lambda = w.vector;
         for (int s = 0; s < batch; s++) {
             if (!Finite.finite(full, s * nOut, nOut) || !Finite.finite(g, s * nOut, nOut)) {
@@ -74,14 +136,15 @@ final class ImplicitGradient {
     private void applyLambda(int s, double[] g, double[] gz, double[] gx, double[] lambda, SolveWork w) {
         int nnz = entryLaw.length;
         int nnzX = inEntryLaw.length;
+        int zAt = s * nFree;
         for (int f = 0; f < nFree; f++) {
-            gz[s * nFree + f] = g[s * nOut + free[f]];
+            gz[zAt + f] = g[s * nOut + free[f]];
         }
-        for (int e = 0; e < nnz; e++) {
-            int r = entryRole[e];
-            if (r < 0) {
-                gz[s * nFree + (-r - 1)] -= w.jy[s * nnz + e] * lambda[entryLaw[e]];
-            }
+        for (int a = 0; a < fixedFreeColumn.length; a++) {
+            gz[zAt + fixedFreeColumn[a]] -= fixedFreeValue[a] * lambda[fixedFreeLaw[a]];
+        }
+        for (int b = 0; b < varyingFreeEntry.length; b++) {
+            gz[zAt + varyingFreeColumn[b]] -= w.jy[s * nnz + varyingFreeEntry[b]] * lambda[varyingFreeLaw[b]];
         }
         if (gx != null) {
             Arrays.fill(gx, s * nIn, (s + 1) * nIn, 0.0);
@@ -128,7 +191,7 @@ final class ImplicitGradient {
         for (int e = 0; e < nnz; e++) {
             int k = entryRole[e];
             if (k >= 0) {
-                w.lu[base + entryLaw[e] * n + k] = w.jy[s * nnz + e];
+                w.lu[base + entryLaw[e] * n + k] = isConstant[e] ? constantEntry[e] : w.jy[s * nnz + e];
             }
         }
         return DenseLu.factor(w.lu, n, w.pivots, base, s * n);
