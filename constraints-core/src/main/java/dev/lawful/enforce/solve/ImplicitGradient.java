@@ -34,10 +34,14 @@ final class ImplicitGradient {
     private final double[] constantEntry;
     private final LawEvaluator.Partial varying;
     private final boolean anyVarying;
-    /** The dC/dz entries (role < 0): entry, free column and law, the constant ones apart with their values. */
-    private final int[] fixedFreeColumn;
+    /**
+     * The constant dC/dz entries by free column: those of column f are {@code fixedFreeLaw/Value[fixedFreeStart[f]
+     * .. fixedFreeStart[f + 1])}, in law order, so that each column's sum runs in a register and is stored once.
+     */
+    private final int[] fixedFreeStart;
     private final int[] fixedFreeLaw;
     private final double[] fixedFreeValue;
+    /** The varying dC/dz entries (role < 0): entry, free column and law. */
     private final int[] varyingFreeEntry;
     private final int[] varyingFreeColumn;
     private final int[] varyingFreeLaw;
@@ -75,23 +79,32 @@ final class ImplicitGradient {
         }
         this.varying = evaluator.partialEntries(evaluated);
         this.anyVarying = some;
-        this.fixedFreeColumn = new int[fixedCount];
+        this.fixedFreeStart = new int[nFree + 1];
         this.fixedFreeLaw = new int[fixedCount];
         this.fixedFreeValue = new double[fixedCount];
         this.varyingFreeEntry = new int[varyingCount];
         this.varyingFreeColumn = new int[varyingCount];
         this.varyingFreeLaw = new int[varyingCount];
-        int a = 0;
+        for (int e = 0; e < constantEntry.length; e++) {
+            if (entryRole[e] < 0 && isConstant[e]) {
+                fixedFreeStart[-entryRole[e]]++;
+            }
+        }
+        for (int f = 0; f < nFree; f++) {
+            fixedFreeStart[f + 1] += fixedFreeStart[f];
+        }
+        int[] next = Arrays.copyOf(fixedFreeStart, nFree);
         int b = 0;
+        // entries are stored law after law, so each column's list comes out in law order
         for (int e = 0; e < constantEntry.length; e++) {
             int r = entryRole[e];
             if (r >= 0) {
                 continue;
             }
             if (isConstant[e]) {
-                fixedFreeColumn[a] = -r - 1;
+                int a = next[-r - 1]++;
                 fixedFreeLaw[a] = entryLaw[e];
-                fixedFreeValue[a++] = constantEntry[e];
+                fixedFreeValue[a] = constantEntry[e];
             } else {
                 varyingFreeEntry[b] = e;
                 varyingFreeColumn[b] = -r - 1;
@@ -138,10 +151,11 @@ final class ImplicitGradient {
         int nnzX = inEntryLaw.length;
         int zAt = s * nFree;
         for (int f = 0; f < nFree; f++) {
-            gz[zAt + f] = g[s * nOut + free[f]];
-        }
-        for (int a = 0; a < fixedFreeColumn.length; a++) {
-            gz[zAt + fixedFreeColumn[a]] -= fixedFreeValue[a] * lambda[fixedFreeLaw[a]];
+            double v = g[s * nOut + free[f]];
+            for (int a = fixedFreeStart[f]; a < fixedFreeStart[f + 1]; a++) {
+                v -= fixedFreeValue[a] * lambda[fixedFreeLaw[a]];
+            }
+            gz[zAt + f] = v;
         }
         for (int b = 0; b < varyingFreeEntry.length; b++) {
             gz[zAt + varyingFreeColumn[b]] -= w.jy[s * nnz + varyingFreeEntry[b]] * lambda[varyingFreeLaw[b]];
