@@ -85,6 +85,11 @@ final class ImplicitGradient {
         this.varyingFreeEntry = new int[varyingCount];
         this.varyingFreeColumn = new int[varyingCount];
         this.varyingFreeLaw = new int[varyingCount];
+        groupFreeEntries();
+    }
+
+    /** Fills the lists of dC/dz entries: the constant ones by free column, the varying ones in entry order. */
+    private void groupFreeEntries() {
         for (int e = 0; e < constantEntry.length; e++) {
             if (entryRole[e] < 0 && isConstant[e]) {
                 fixedFreeStart[-entryRole[e]]++;
