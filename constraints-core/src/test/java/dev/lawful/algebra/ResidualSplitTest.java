@@ -4,28 +4,15 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertThrows;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import dev.lawful.CollisionLaws;
 import java.math.BigDecimal;
 import java.util.SplittableRandom;
 import org.junit.jupiter.api.Test;
 
 class ResidualSplitTest {
-    /** A two-body elastic collision in a plane: momentum, kinetic energy and body 1's tangential velocity. */
-    private static final String COLLISION = String.join("\n",
-            "input m1 kg",
-            "input m2 kg",
-            "input u1[2] m/s",
-            "input u2[2] m/s",
-            "input n[2]",
-            "output v1[2] m/s",
-            "output v2[2] m/s",
-            "law momentum: m1*v1 + m2*v2 = m1*u1 + m2*u2",
-            "law energy: 0.5*m1*dot(v1, v1) + 0.5*m2*dot(v2, v2) = 0.5*m1*dot(u1, u1) + 0.5*m2*dot(u2, u2)",
-            "law tangent: n[0]*v1[1] - n[1]*v1[0] = n[0]*u1[1] - n[1]*u1[0]",
-            "");
-
     @Test
     void theTwoPartsAddUpToTheWholeLawAndItsDerivatives() {
-        LawSet laws = LawSet.parse("<collision>", COLLISION);
+        LawSet laws = LawSet.parse("<collision>", CollisionLaws.TEXT);
         LawEvaluator whole = laws.evaluator();
         ResidualSplit split = ResidualSplit.of(laws.expand(), whole, new int[] {0, 1, 2, 3});
         // each law's right-hand side: two addends that involve no completed output (m1*u1[0] and m2*u2[0]; the
