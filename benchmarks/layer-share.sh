@@ -5,8 +5,10 @@
 # TIERS="constant-affine constant-affine+limits" benchmarks/layer-share.sh   measures only those tiers
 # NET=graph benchmarks/layer-share.sh   the graph path (ConstrainedGraph with a law vertex, GraphTrainingStepBench)
 # Per shape and tier (constant-affine+limits: the same laws with a limit on every output that no sample
-# touches): samples of the benchmark thread (Java every 10 ms, native every 20 ms, each weighted by its
-# period) with a dev.lawful core or adapter frame on the stack, over all its samples. About 40 s per line.
+# touches): samples of the benchmark thread (Java every 2 ms, native every 20 ms, each weighted by its
+# period) with a dev.lawful core or adapter frame on the stack, over all its samples. The recording starts
+# 10 s into the run (JFR's delay), inside the 12 s of warm-up, so it sees the steady state and not the first
+# steps, which compile the laws and the JIT's code once. About 45 s per line.
 set -euo pipefail
 here="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 cd "$here"
@@ -17,15 +19,17 @@ bench='\.TrainingStepBench\.'
 [[ "${NET:-layer}" == graph ]] && bench='\.GraphTrainingStepBench\.'
 out=benchmarks/target/layer-share
 mkdir -p "$out"
+java_home="$(java -XshowSettings:properties -version 2>&1 | awk '/java.home =/ {print $3}')"
+sed -e '/method-sampling-java-interval/s/[0-9]* ms/2 ms/' "$java_home/lib/jfr/profile.jfc" > "$out/share.jfc"
 shapes=("$@")
 [[ ${#shapes[@]} -gt 0 ]] || shapes=(headline)
 for shape in "${shapes[@]}"; do
   for tier in ${TIERS:-constant-affine affine nonlinear constant-affine+limits}; do
     f="$out/${NET:-layer}-$shape-$tier.jfr"
-    java -jar "$jar" "$bench" -p shape="$shape" -p laws="$tier" -wi 3 -w 2 -i 6 -r 2 -f 1 \
-      -jvmArgsAppend "-XX:StartFlightRecording=filename=$f,settings=profile" > "$out/${NET:-layer}-$shape-$tier.log" 2>&1
+    java -jar "$jar" "$bench" -p shape="$shape" -p laws="$tier" -wi 6 -w 2 -i 6 -r 2 -f 1 \
+      -jvmArgsAppend "-XX:StartFlightRecording=delay=10s,filename=$f,settings=$out/share.jfc" > "$out/${NET:-layer}-$shape-$tier.log" 2>&1
     jfr print --events jdk.ExecutionSample,jdk.NativeMethodSample --stack-depth 200 "$f" | awk -v tag="${NET:-layer} $shape $tier" '
-      /^jdk\.(ExecutionSample|NativeMethodSample)/ {if (inev) flush(); inev=1; w=($0 ~ /Native/) ? 20 : 10; law=0; bench=0; next}
+      /^jdk\.(ExecutionSample|NativeMethodSample)/ {if (inev) flush(); inev=1; w=($0 ~ /Native/) ? 20 : 2; law=0; bench=0; next}
       /dev\.lawful\.(enforce|dl4j|algebra)\./ {law=1}
       /TrainingStepBench\.fit/ {bench=1}
       function flush() { if (bench) {n+=w; if (law) l+=w} }

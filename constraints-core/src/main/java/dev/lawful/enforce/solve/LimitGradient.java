@@ -37,6 +37,8 @@ final class LimitGradient {
     private final int[] inEntryColumn;
     private final int[] single;
     private final double[] bound;
+    /** Per limit of one output by a constant: the distance from the bound within which the output is on it. */
+    private final double[] near;
     private final int n;
     private final int k;
     private final int m;
@@ -63,6 +65,11 @@ final class LimitGradient {
         this.single = limits.singleOutput();
         this.bound = limits.bound();
         this.n = plan.lawCount();
+        double[] size = limits.scales();
+        this.near = new double[limits.count()];
+        for (int j = 0; j < near.length; j++) {
+            near[j] = single[j] >= 0 ? ON_LIMIT * (Math.abs(bound[j]) + size[single[j]]) : 0;
+        }
         this.k = plan.freeWidth();
         this.m = limits.count();
         this.p = plan.outputWidth();
@@ -97,11 +104,7 @@ final class LimitGradient {
             if (!Double.isFinite(gz[s * k])) {
                 continue;
             }
-            if (nIn > 0) {
-                System.arraycopy(x, s * nIn, xs, 0, nIn);
-            }
-            System.arraycopy(full, s * p, ys, 0, p);
-            int a = onLimits();
+            int a = onLimits(x, full, s);
             if (a == 0) {
                 continue;
             }
@@ -116,20 +119,24 @@ final class LimitGradient {
         }
     }
 
-    /** @return the number of limits the current row lies on, listed in {@code on} */
-    private int onLimits() {
-        boolean values = false;
+    /**
+     * @return the number of limits row {@code s} lies on, listed in {@code on}; when there is one, the row is in
+     *         {@code xs} and {@code ys} (a row on no limit of one output by a constant is read in place)
+     */
+    private int onLimits(double[] x, double[] full, int s) {
+        int ro = s * p;
+        boolean copied = false;
         int a = 0;
-        double[] size = limits.scales();
         for (int j = 0; j < m; j++) {
             int o = single[j];
             boolean at;
             if (o >= 0) {
-                at = Math.abs(ys[o] - bound[j]) <= ON_LIMIT * (Math.abs(bound[j]) + size[o]);
+                at = Math.abs(full[ro + o] - bound[j]) <= near[j];
             } else {
-                if (!values) {
+                if (!copied) {
+                    copyRow(x, full, s);
                     lin.values(xs, ys);
-                    values = true;
+                    copied = true;
                 }
                 at = Math.abs(lin.g[j]) <= ON_LIMIT * lin.gScale[j];
             }
@@ -137,9 +144,21 @@ final class LimitGradient {
                 on[a++] = j;
             }
         }
+        if (a > 0 && !copied) {
+            copyRow(x, full, s);
+        }
         return a;
     }
 
+    /** Row {@code s}'s inputs into {@code xs} and its full outputs into {@code ys}. */
+    private void copyRow(double[] x, double[] full, int s) {
+        if (nIn > 0) {
+            System.arraycopy(x, s * nIn, xs, 0, nIn);
+        }
+        System.arraycopy(full, s * p, ys, 0, p);
+    }
+
+    /** Factors this sample's metric W into {@code wlu}; false when it is singular. */
     private boolean factorMetric() {
         System.arraycopy(lin.w, 0, wlu, 0, k * k);
         return DenseLu.factor(wlu, k, wpiv);

@@ -63,6 +63,15 @@ public final class LimitStep {
     private final boolean[] lower;
     /** Whether every limit bounds one output by a constant, so the fast path needs no evaluation. */
     private final boolean allConstantBounds;
+    /**
+     * The limits of one output by a constant, for the per-sample check: the output, and the limit as
+     * {@code sign·y >= sign·bound} (sign +1 for a lower limit, −1 for an upper one; negation is exact).
+     */
+    private final int[] singleOutput;
+    private final double[] singleSign;
+    private final double[] singleSignedBound;
+    /** The other limits (on expressions), checked against their values and scales. */
+    private final int[] expressionLimits;
 
     /**
      * @param plan   a plan with limits
@@ -101,6 +110,26 @@ public final class LimitStep {
             constant &= single[j] >= 0;
         }
         this.allConstantBounds = constant;
+        int singles = 0;
+        for (int j = 0; j < m; j++) {
+            singles += single[j] >= 0 ? 1 : 0;
+        }
+        this.singleOutput = new int[singles];
+        this.singleSign = new double[singles];
+        this.singleSignedBound = new double[singles];
+        this.expressionLimits = new int[m - singles];
+        int a = 0;
+        int b = 0;
+        for (int j = 0; j < m; j++) {
+            if (single[j] >= 0) {
+                double sign = lower[j] ? 1 : -1;
+                singleOutput[a] = single[j];
+                singleSign[a] = sign;
+                singleSignedBound[a++] = sign * bound[j];
+            } else {
+                expressionLimits[b++] = j;
+            }
+        }
     }
 
     /**
@@ -144,17 +173,17 @@ public final class LimitStep {
      *         limit to its rounding bound
      */
     private boolean inside(double[] row, int ro, double[] values, double[] scales, int go) {
-        final int[] single = this.single;
-        final double[] bound = this.bound;
-        final boolean[] lower = this.lower;
-        for (int j = 0; j < m; j++) {
-            int o = single[j];
-            if (o >= 0) {
-                double y = row[ro + o];
-                if (lower[j] ? !(y >= bound[j]) : !(y <= bound[j])) {
-                    return false;
-                }
-            } else if (!(values[go + j] >= -3 * EPS * scales[go + j])) {
+        final int[] out = this.singleOutput;
+        final double[] sign = this.singleSign;
+        final double[] signedBound = this.singleSignedBound;
+        for (int i = 0; i < out.length; i++) {
+            // false for NaN, as the limit itself
+            if (!(sign[i] * row[ro + out[i]] >= signedBound[i])) {
+                return false;
+            }
+        }
+        for (int j : expressionLimits) {
+            if (!(values[go + j] >= -3 * EPS * scales[go + j])) {
                 return false;
             }
         }
