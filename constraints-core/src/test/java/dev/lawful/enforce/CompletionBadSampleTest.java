@@ -212,6 +212,38 @@ class CompletionBadSampleTest {
                 new byte[] {ok, bad, bad});
     }
 
+    /** Constant-affine, reading one of its four inputs: y[1] = (u[0] − y[0])/2, the fold's N held sparse. */
+    private static final LawSet ONE_OF_FOUR_INPUTS = LawSet.parse("<one of four inputs>", String.join("\n",
+            "input u[4]",
+            "output y[2]",
+            "law s: y[0] + 2*y[1] = u[0]",
+            "complete y[1]",
+            ""));
+
+    @Test
+    void anInputNoLawReadsStillMarksItsSampleWhenNotFinite() {
+        double nan = Double.NaN;
+        double inf = Double.POSITIVE_INFINITY;
+        byte ok = SampleStatus.OK;
+        byte bad = SampleStatus.NOT_FINITE;
+        // u[1..3] are read by no law: NaN or infinite there is still a non-finite input of that sample
+        checkMask(ONE_OF_FOUR_INPUTS, new double[] {5, 0, 0, 0, 5, 0, 0, nan, 5, inf, 0, 0, 7, 1, 2, 3},
+                new double[] {1, 1, 1, 3}, new byte[] {ok, bad, bad, ok});
+        // by hand: y[1] = (u[0] − y[0])/2, so dy[1]/du[0] = 1/2, dy[1]/dy[0] = −1/2, the other inputs 0
+        Completion c = masked(ONE_OF_FOUR_INPUTS);
+        double[] x = {5, 0, 0, 0, 7, 1, 2, 3};
+        double[] y = new double[4];
+        byte[] status = new byte[2];
+        Completion.Workspace ws = c.newWorkspace();
+        c.forward(x, new double[] {1, 3}, 2, y, status, ws);
+        assertArrayEquals(new double[] {1, 2, 3, 2}, y, 0.0);
+        double[] gz = new double[2];
+        double[] gx = new double[8];
+        c.backward(x, y, new double[] {0, 1, 0, 1}, 2, gz, gx, ws);
+        assertArrayEquals(new double[] {-0.5, -0.5}, gz, 0.0);
+        assertArrayEquals(new double[] {0.5, 0, 0, 0, 0.5, 0, 0, 0}, gx, 0.0);
+    }
+
     // ---- singular systems ------------------------------------------------------------------------------------
 
     @Test

@@ -7,6 +7,15 @@ final class Finite {
 
     /** @return whether {@code a[from .. from+count)} are all finite (no NaN, no infinity) */
     static boolean finite(double[] a, int from, int count) {
+        return probe(a, from, count) == 0;
+    }
+
+    /**
+     * @return +0.0 when {@code a[from .. from+count)} are all finite, NaN otherwise: added to a sum, it makes the
+     *         sum NaN exactly when one of those values is not finite and leaves it unchanged otherwise (but for
+     *         the sign of a zero sum)
+     */
+    static double probe(double[] a, int from, int count) {
         // v·0 is ±0 for a finite v and NaN otherwise; eight running sums so the additions overlap
         double p0 = 0;
         double p1 = 0;
@@ -31,6 +40,6 @@ final class Finite {
         for (; i < count; i++) {
             p0 += a[from + i] * 0.0;
         }
-        return (p0 + p1) + (p2 + p3) + (p4 + p5) + (p6 + p7) == 0;
+        return (p0 + p1) + (p2 + p3) + (p4 + p5) + (p6 + p7);
     }
 }

@@ -23,6 +23,14 @@ final class FoldSolver implements TierSolver {
     private final int nIn;
     private final int nOut;
     private final int nFree;
+    /**
+     * N held by rows of nonzeros ({@code xStart[r] .. xStart[r+1]} index {@code xCol} and {@code xCoef}), used
+     * instead of the dense rows when at most half of N is nonzero: laws usually read a few inputs each.
+     */
+    private final boolean sparseX;
+    private final int[] xStart;
+    private final int[] xCol;
+    private final double[] xCoef;
 
     FoldSolver(CompletionPlan plan, Columns columns) {
         Fold fold = plan.fold();
@@ -38,6 +46,24 @@ final class FoldSolver implements TierSolver {
         this.nIn = plan.inputWidth();
         this.nOut = plan.outputWidth();
         this.nFree = plan.freeWidth();
+        int nonzeros = 0;
+        for (double v : nx) {
+            nonzeros += v != 0 ? 1 : 0;
+        }
+        this.sparseX = nx.length > 0 && 2 * nonzeros <= nx.length;
+        this.xStart = new int[n + 1];
+        this.xCol = new int[nonzeros];
+        this.xCoef = new double[nonzeros];
+        int e = 0;
+        for (int r = 0; r < n; r++) {
+            for (int i = 0; i < nIn; i++) {
+                if (nx[r * nIn + i] != 0) {
+                    xCol[e] = i;
+                    xCoef[e++] = nx[r * nIn + i];
+                }
+            }
+            xStart[r + 1] = e;
+        }
     }
 
     @Override
@@ -53,6 +79,9 @@ final class FoldSolver implements TierSolver {
         }
         for (; r < n; r++) {
             foldOne(x, z, batch, r, full);
+        }
+        if (sparseX) {
+            addSparseInputs(x, batch, full);
         }
         for (int s = 0; s < batch; s++) {
             int yo = s * nOut;
@@ -74,11 +103,13 @@ final class FoldSolver implements TierSolver {
 
     /**
      * Completed output r of every sample. Every product M_rf·z_f and N_ri·x_i is formed (zero coefficients
-     * included), and 0·∞ and 0·NaN are NaN, so a non-finite input or free output makes every completed output
-     * non-finite: the inputs are scanned only for samples whose first completed output is not finite, to tell a
-     * non-finite input (NOT_FINITE) from an overflow (NOT_CONVERGED).
+     * included; a sparse N is added afterwards, {@link #addSparseInputs}), and 0·∞ and 0·NaN are NaN, so a
+     * non-finite input or free output makes every completed output non-finite: the inputs are scanned only for
+     * samples whose first completed output is not finite, to tell a non-finite input (NOT_FINITE) from an overflow
+     * (NOT_CONVERGED).
      */
     private void foldOne(double[] x, double[] z, int batch, int r, double[] full) {
+        final int ni = sparseX ? 0 : nIn;
         for (int s = 0; s < batch; s++) {
             int zo = s * nFree;
             int xo = s * nIn;
@@ -86,7 +117,7 @@ final class FoldSolver implements TierSolver {
             for (int f = 0; f < nFree; f++) {
                 v += m[r * nFree + f] * z[zo + f];
             }
-            for (int i = 0; i < nIn; i++) {
+            for (int i = 0; i < ni; i++) {
                 v += nx[r * nIn + i] * x[xo + i];
             }
             full[s * nOut + completed[r]] = v;
@@ -102,7 +133,8 @@ final class FoldSolver implements TierSolver {
         final double[] m = this.m;
         final double[] nx = this.nx;
         final int nf = nFree;
-        final int ni = nIn;
+        // a sparse N is added by its own pass afterwards
+        final int ni = sparseX ? 0 : nIn;
         final int m0 = r * nf;
         final int m1 = m0 + nf;
         final int m2 = m1 + nf;
@@ -158,6 +190,26 @@ final class FoldSolver implements TierSolver {
         }
     }
 
+    /**
+     * Adds N x to every completed output when N is held sparse: the same additions, in the same order, as the
+     * dense rows without their zero products, and {@link Finite#probe} of the sample's inputs (0, or NaN for a
+     * non-finite input) in their place, so a non-finite input still makes every completed output non-finite.
+     */
+    private void addSparseInputs(double[] x, int batch, double[] full) {
+        for (int s = 0; s < batch; s++) {
+            int xo = s * nIn;
+            int yo = s * nOut;
+            double probe = Finite.probe(x, xo, nIn);
+            for (int r = 0; r < n; r++) {
+                double v = full[yo + completed[r]] + probe;
+                for (int e = xStart[r]; e < xStart[r + 1]; e++) {
+                    v += xCoef[e] * x[xo + xCol[e]];
+                }
+                full[yo + completed[r]] = v;
+            }
+        }
+    }
+
     @Override
     public int backward(double[] x, int batch, double[] full, double[] g, double[] gz, double[] gx,
             boolean throwOnSingular) {
@@ -181,11 +233,7 @@ final class FoldSolver implements TierSolver {
                     gz[s * nFree + f] += m[mo + f] * gc;
                 }
                 if (gx != null) {
-                    int no = r * nIn;
-                    int xo = s * nIn;
-                    for (int i = 0; i < nIn; i++) {
-                        gx[xo + i] += nx[no + i] * gc;
-                    }
+                    addInputRow(r, gc, gx, s * nIn);
                 }
             }
         }
@@ -206,12 +254,34 @@ final class FoldSolver implements TierSolver {
                     + m[m0 + 2 * nFree + f] * g2 + m[m0 + 3 * nFree + f] * g3;
         }
         if (gx != null) {
-            int n0 = r * nIn;
             int xo = s * nIn;
+            if (sparseX) {
+                // the same additions per input, in the same row order, without the zero products
+                addInputRow(r, g0, gx, xo);
+                addInputRow(r + 1, g1, gx, xo);
+                addInputRow(r + 2, g2, gx, xo);
+                addInputRow(r + 3, g3, gx, xo);
+                return;
+            }
+            int n0 = r * nIn;
             for (int i = 0; i < nIn; i++) {
                 gx[xo + i] = gx[xo + i] + nx[n0 + i] * g0 + nx[n0 + nIn + i] * g1
                         + nx[n0 + 2 * nIn + i] * g2 + nx[n0 + 3 * nIn + i] * g3;
             }
+        }
+    }
+
+    /** ḡ_x += (row r of N)·g_r, over the row's nonzeros when N is held sparse. */
+    private void addInputRow(int r, double gr, double[] gx, int xo) {
+        if (sparseX) {
+            for (int e = xStart[r]; e < xStart[r + 1]; e++) {
+                gx[xo + xCol[e]] += xCoef[e] * gr;
+            }
+            return;
+        }
+        int no = r * nIn;
+        for (int i = 0; i < nIn; i++) {
+            gx[xo + i] += nx[no + i] * gr;
         }
     }
 }
