@@ -179,6 +179,10 @@ class DenseLuTest {
         assertFalse(DenseLu.factor(new double[] {1, Double.NaN, 0, 1}, 2, pivot), "NaN entry");
         assertFalse(DenseLu.factor(new double[] {1, Double.POSITIVE_INFINITY, 0, 1}, 2, pivot), "infinite entry");
         assertFalse(DenseLu.factor(new double[] {0}, 1, pivot), "1×1 zero");
+        assertFalse(DenseLu.factor(new double[] {-0.0}, 1, pivot), "1×1 negative zero");
+        assertFalse(DenseLu.factor(new double[] {Double.NaN}, 1, pivot), "1×1 NaN");
+        assertFalse(DenseLu.factor(new double[] {Double.NEGATIVE_INFINITY}, 1, pivot), "1×1 infinite");
+        assertTrue(DenseLu.factor(new double[] {Double.MIN_VALUE}, 1, pivot), "1×1 subnormal: not zero");
         // near the threshold (a pivot below 1e-14 of the largest entry counts as singular)
         assertFalse(DenseLu.factor(new double[] {1, 1, 1, 1 + 1e-15}, 2, pivot), "pivot 1e-15 of the largest entry");
         assertTrue(DenseLu.factor(new double[] {1, 1, 1, 1 + 1e-12}, 2, pivot), "pivot 1e-12 of the largest entry");
