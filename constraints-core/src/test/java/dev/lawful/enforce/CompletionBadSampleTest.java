@@ -210,6 +210,9 @@ class CompletionBadSampleTest {
                 new byte[] {ok, bad, bad});
         checkMask(NONLINEAR, new double[] {4, 1, inf, 1, 9, 2}, new double[] {1, 1, nan},
                 new byte[] {ok, bad, bad});
+        // u[1..3] are read by no law (the fold holds N sparse): NaN or infinite there is still a non-finite input
+        checkMask(ONE_OF_FOUR_INPUTS, new double[] {5, 0, 0, 0, 5, 0, 0, nan, 5, -inf, 0, 0, 7, 1, 2, 3},
+                new double[] {1, 1, 1, 3}, new byte[] {ok, bad, bad, ok});
     }
 
     /** Constant-affine, reading one of its four inputs: y[1] = (u[0] − y[0])/2, the fold's N held sparse. */
@@ -221,14 +224,7 @@ class CompletionBadSampleTest {
             ""));
 
     @Test
-    void anInputNoLawReadsStillMarksItsSampleWhenNotFinite() {
-        double nan = Double.NaN;
-        double inf = Double.POSITIVE_INFINITY;
-        byte ok = SampleStatus.OK;
-        byte bad = SampleStatus.NOT_FINITE;
-        // u[1..3] are read by no law: NaN or infinite there is still a non-finite input of that sample
-        checkMask(ONE_OF_FOUR_INPUTS, new double[] {5, 0, 0, 0, 5, 0, 0, nan, 5, inf, 0, 0, 7, 1, 2, 3},
-                new double[] {1, 1, 1, 3}, new byte[] {ok, bad, bad, ok});
+    void aLawReadingOneOfFourInputsGivesTheValuesAndGradientsWorkedByHand() {
         // by hand: y[1] = (u[0] − y[0])/2, so dy[1]/du[0] = 1/2, dy[1]/dy[0] = −1/2, the other inputs 0
         Completion c = masked(ONE_OF_FOUR_INPUTS);
         double[] x = {5, 0, 0, 0, 7, 1, 2, 3};
