@@ -16,7 +16,6 @@ final class FoldSolver implements TierSolver {
     private final StageBlocks blocks;
     private final SolveWork work;
     private final double[] m;
-    private final double[] nx;
     private final double[] k;
     private final int[] completed;
     private final int n;
@@ -24,13 +23,14 @@ final class FoldSolver implements TierSolver {
     private final int nOut;
     private final int nFree;
     /**
-     * N held by rows of nonzeros ({@code xStart[r] .. xStart[r+1]} index {@code xCol} and {@code xCoef}), used
-     * instead of the dense rows when at most half of N is nonzero: laws usually read a few inputs each.
+     * N by rows of nonzeros: row r's are {@code xStart[r] .. xStart[r+1]} in {@code xCol} and {@code xCoef} (laws
+     * usually read a few inputs each).
      */
-    private final boolean sparseX;
     private final int[] xStart;
     private final int[] xCol;
     private final double[] xCoef;
+    /** Whether some entry of N is zero, so some input reaches some completed output through no product. */
+    private final boolean probeInputs;
 
     FoldSolver(CompletionPlan plan, Columns columns) {
         Fold fold = plan.fold();
@@ -39,18 +39,18 @@ final class FoldSolver implements TierSolver {
         this.blocks = new StageBlocks(plan, certifier);
         this.work = new SolveWork(plan, false);
         this.m = fold.m();
-        this.nx = fold.n();
         this.k = fold.k();
         this.completed = plan.completed();
         this.n = plan.lawCount();
         this.nIn = plan.inputWidth();
         this.nOut = plan.outputWidth();
         this.nFree = plan.freeWidth();
+        double[] nx = fold.n();
         int nonzeros = 0;
         for (double v : nx) {
             nonzeros += v != 0 ? 1 : 0;
         }
-        this.sparseX = nx.length > 0 && 2 * nonzeros <= nx.length;
+        this.probeInputs = nonzeros < nx.length;
         this.xStart = new int[n + 1];
         this.xCol = new int[nonzeros];
         this.xCoef = new double[nonzeros];
@@ -75,13 +75,13 @@ final class FoldSolver implements TierSolver {
         // only, and those without ran 1.5x slower)
         int r = 0;
         for (; r + 4 <= n; r += 4) {
-            foldFour(x, z, batch, r, full);
+            foldFour(z, batch, r, full);
         }
         for (; r < n; r++) {
-            foldOne(x, z, batch, r, full);
+            foldOne(z, batch, r, full);
         }
-        if (sparseX) {
-            addSparseInputs(x, batch, full);
+        if (nIn > 0) {
+            addInputs(x, batch, full);
         }
         for (int s = 0; s < batch; s++) {
             int yo = s * nOut;
@@ -102,23 +102,18 @@ final class FoldSolver implements TierSolver {
     }
 
     /**
-     * Completed output r of every sample. Every product M_rf·z_f and N_ri·x_i is formed (zero coefficients
-     * included; a sparse N is added afterwards, {@link #addSparseInputs}), and 0·∞ and 0·NaN are NaN, so a
-     * non-finite input or free output makes every completed output non-finite: the inputs are scanned only for
-     * samples whose first completed output is not finite, to tell a non-finite input (NOT_FINITE) from an overflow
-     * (NOT_CONVERGED).
+     * Completed output r of every sample, without the inputs ({@link #addInputs}). Every product M_rf·z_f is
+     * formed (zero coefficients included), and 0·∞ and 0·NaN are NaN, so a non-finite free output makes every
+     * completed output non-finite, and so does a non-finite input through {@link #addInputs}: the inputs are scanned
+     * only for samples whose first completed output is not finite, to tell a non-finite input (NOT_FINITE) from an
+     * overflow (NOT_CONVERGED).
      */
-    private void foldOne(double[] x, double[] z, int batch, int r, double[] full) {
-        final int ni = sparseX ? 0 : nIn;
+    private void foldOne(double[] z, int batch, int r, double[] full) {
         for (int s = 0; s < batch; s++) {
             int zo = s * nFree;
-            int xo = s * nIn;
             double v = k[r];
             for (int f = 0; f < nFree; f++) {
                 v += m[r * nFree + f] * z[zo + f];
-            }
-            for (int i = 0; i < ni; i++) {
-                v += nx[r * nIn + i] * x[xo + i];
             }
             full[s * nOut + completed[r]] = v;
         }
@@ -129,20 +124,15 @@ final class FoldSolver implements TierSolver {
      * and odd free outputs separately, eight independent running sums, so the additions overlap instead of
      * waiting on one another.
      */
-    private void foldFour(double[] x, double[] z, int batch, int r, double[] full) {
+    private void foldFour(double[] z, int batch, int r, double[] full) {
         final double[] m = this.m;
-        final double[] nx = this.nx;
         final int nf = nFree;
-        // a sparse N is added by its own pass afterwards
-        final int ni = sparseX ? 0 : nIn;
         final int m0 = r * nf;
         final int m1 = m0 + nf;
         final int m2 = m1 + nf;
         final int m3 = m2 + nf;
-        final int n0 = r * ni;
         for (int s = 0; s < batch; s++) {
             int zo = s * nf;
-            int xo = s * ni;
             double v0 = k[r];
             double v1 = k[r + 1];
             double v2 = k[r + 2];
@@ -175,13 +165,6 @@ final class FoldSolver implements TierSolver {
             v1 += w1;
             v2 += w2;
             v3 += w3;
-            for (int i = 0; i < ni; i++) {
-                double xi = x[xo + i];
-                v0 += nx[n0 + i] * xi;
-                v1 += nx[n0 + ni + i] * xi;
-                v2 += nx[n0 + 2 * ni + i] * xi;
-                v3 += nx[n0 + 3 * ni + i] * xi;
-            }
             int yo = s * nOut;
             full[yo + completed[r]] = v0;
             full[yo + completed[r + 1]] = v1;
@@ -191,15 +174,15 @@ final class FoldSolver implements TierSolver {
     }
 
     /**
-     * Adds N x to every completed output when N is held sparse: the same additions, in the same order, as the
-     * dense rows without their zero products, and {@link Finite#probe} of the sample's inputs (0, or NaN for a
-     * non-finite input) in their place, so a non-finite input still makes every completed output non-finite.
+     * Adds N x to every completed output, over N's nonzeros in column order. Where N has a zero, {@link
+     * Finite#probe} of the sample's inputs (0, or NaN for a non-finite input) stands for the zero products, so a
+     * non-finite input makes every completed output non-finite even when a law does not read it.
      */
-    private void addSparseInputs(double[] x, int batch, double[] full) {
+    private void addInputs(double[] x, int batch, double[] full) {
         for (int s = 0; s < batch; s++) {
             int xo = s * nIn;
             int yo = s * nOut;
-            double probe = Finite.probe(x, xo, nIn);
+            double probe = probeInputs ? Finite.probe(x, xo, nIn) : 0;
             for (int r = 0; r < n; r++) {
                 double v = full[yo + completed[r]] + probe;
                 for (int e = xStart[r]; e < xStart[r + 1]; e++) {
@@ -255,33 +238,17 @@ final class FoldSolver implements TierSolver {
         }
         if (gx != null) {
             int xo = s * nIn;
-            if (sparseX) {
-                // the same additions per input, in the same row order, without the zero products
-                addInputRow(r, g0, gx, xo);
-                addInputRow(r + 1, g1, gx, xo);
-                addInputRow(r + 2, g2, gx, xo);
-                addInputRow(r + 3, g3, gx, xo);
-                return;
-            }
-            int n0 = r * nIn;
-            for (int i = 0; i < nIn; i++) {
-                gx[xo + i] = gx[xo + i] + nx[n0 + i] * g0 + nx[n0 + nIn + i] * g1
-                        + nx[n0 + 2 * nIn + i] * g2 + nx[n0 + 3 * nIn + i] * g3;
-            }
+            addInputRow(r, g0, gx, xo);
+            addInputRow(r + 1, g1, gx, xo);
+            addInputRow(r + 2, g2, gx, xo);
+            addInputRow(r + 3, g3, gx, xo);
         }
     }
 
-    /** ḡ_x += (row r of N)·g_r, over the row's nonzeros when N is held sparse. */
+    /** ḡ_x += (row r of N)·g_r, over the row's nonzeros. */
     private void addInputRow(int r, double gr, double[] gx, int xo) {
-        if (sparseX) {
-            for (int e = xStart[r]; e < xStart[r + 1]; e++) {
-                gx[xo + xCol[e]] += xCoef[e] * gr;
-            }
-            return;
-        }
-        int no = r * nIn;
-        for (int i = 0; i < nIn; i++) {
-            gx[xo + i] += nx[no + i] * gr;
+        for (int e = xStart[r]; e < xStart[r + 1]; e++) {
+            gx[xo + xCol[e]] += xCoef[e] * gr;
         }
     }
 }

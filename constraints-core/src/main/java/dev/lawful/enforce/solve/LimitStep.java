@@ -105,11 +105,6 @@ public final class LimitStep {
         this.single = limits.singleOutput();
         this.bound = limits.bound();
         this.lower = limits.lower();
-        boolean constant = true;
-        for (int j = 0; j < m; j++) {
-            constant &= single[j] >= 0;
-        }
-        this.allConstantBounds = constant;
         int singles = 0;
         for (int j = 0; j < m; j++) {
             singles += single[j] >= 0 ? 1 : 0;
@@ -130,6 +125,7 @@ public final class LimitStep {
                 expressionLimits[b++] = j;
             }
         }
+        this.allConstantBounds = expressionLimits.length == 0;
     }
 
     /**
