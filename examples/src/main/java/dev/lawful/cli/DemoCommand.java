@@ -16,14 +16,15 @@ import picocli.CommandLine.Command;
 import picocli.CommandLine.Model.CommandSpec;
 import picocli.CommandLine.Option;
 import picocli.CommandLine.Parameters;
+import picocli.CommandLine.ParentCommand;
 import picocli.CommandLine.Spec;
 
 /**
  * {@code lawful demo [reformer|column|exchanger|all] [--out DIR] [--epochs N] [--samples N] [--seed S] [--quiet]}:
  * runs worked scenarios end to end. For each it generates data with the scenario's physical model, trains three
  * networks on the same data, split and seed (unconstrained, soft penalty, exact law vertex), prints the comparison
- * table and writes the report (table, JSON, CSV, plots) under {@code DIR/NAME}. Progress goes to standard error,
- * results to standard output.
+ * table and writes the report (table, JSON, CSV, plots) under {@code DIR/NAME}. Progress bars go to standard error
+ * when it is a terminal, results to standard output.
  *
  * <p>Exit status: {@value Lawful#EXIT_OK} when the run finished and the exact network obeyed every law within the
  * documented bound on every test row; {@value Lawful#EXIT_INVALID} when it did not (a defect to report);
@@ -53,6 +54,9 @@ public final class DemoCommand implements Callable<Integer> {
     @Spec
     private CommandSpec spec;
 
+    @ParentCommand
+    private Lawful parent;
+
     @Parameters(index = "0", arity = "0..1", paramLabel = "SCENARIO", defaultValue = "all",
             description = "reformer, column, exchanger or all (default: ${DEFAULT-VALUE})")
     private String scenario;
@@ -72,7 +76,8 @@ public final class DemoCommand implements Callable<Integer> {
             description = "seed of data, split, initialisation and minibatch order (default: ${DEFAULT-VALUE})")
     private long seed;
 
-    @Option(names = "--quiet", description = "no progress display")
+    @Option(names = "--quiet", description = "no progress display (there is none when standard error is not a"
+            + " terminal)")
     private boolean quiet;
 
     /** Creates the command; picocli calls this. */
@@ -107,7 +112,9 @@ public final class DemoCommand implements Callable<Integer> {
             return Lawful.EXIT_USAGE;
         }
         int status = Lawful.EXIT_OK;
-        Progress progress = quiet ? Progress.quiet() : Progress.console(new PrintStream(new WriterStream(e), true));
+        // bars are redrawn with carriage returns: only on a terminal, never into a log file or a pipe
+        Progress progress = quiet || !parent.standardErrorIsTerminal() ? Progress.quiet()
+                : Progress.console(new PrintStream(new WriterStream(e), true));
         for (Scenario s : chosen) {
             Scenario sized = s.withSize(samples == null ? s.samples() : samples, epochs == null ? s.epochs() : epochs);
             o.println("== " + s.title() + " ==");

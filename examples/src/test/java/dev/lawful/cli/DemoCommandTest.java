@@ -29,6 +29,17 @@ class DemoCommandTest {
     }
 
     @Test
+    void noProgressBarsWhenStandardErrorIsNotATerminal(@TempDir Path dir) {
+        // a log file or a pipe must not collect bars redrawn with carriage returns (common practice for command-line
+        // tools); LawfulTest.run tells the command that standard error is not a terminal
+        LawfulTest.Captured r = LawfulTest.run("demo", "exchanger", "--samples", "200", "--epochs", "2", "--out",
+                dir.toString());
+        assertEquals(0, r.code(), r.err());
+        assertTrue(!r.err().contains("\r") && !r.err().contains("exchanger: exact"), r.err());
+        assertTrue(r.out().contains("  exact          0 of 40\n"), r.out());
+    }
+
+    @Test
     void helpCarriesTheCaution() {
         LawfulTest.Captured r = LawfulTest.run("demo", "--help");
         assertEquals(0, r.code());
